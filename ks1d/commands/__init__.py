@@ -1,0 +1,1 @@
+"""Sub-commands of the ``ks1d`` CLI; each module exposes ``register(subparsers)``."""

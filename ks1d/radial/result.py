@@ -1,0 +1,156 @@
+"""Result objects of the radial atomic solver."""
+from __future__ import annotations
+
+from dataclasses import asdict, dataclass, field
+from typing import Any
+
+import numpy as np
+
+from ..occupations import L_LETTERS
+from .density import shell_density
+from .mesh import RadialMesh
+
+
+@dataclass(frozen=True)
+class Orbital:
+    """One radial sub-shell orbital: n, l, spin ("up", "down" or "both"), occupation, energy (hartree)."""
+
+    n: int
+    l: int
+    spin: str
+    occupation: float
+    energy: float
+
+    @property
+    def label(self) -> str:
+        return f"{self.n}{L_LETTERS[self.l]}"
+
+    @property
+    def bound(self) -> bool:
+        return self.energy < 0.0
+
+    def to_dict(self) -> dict:
+        return {"n": self.n, "l": self.l, "label": self.label, "spin": self.spin,
+                "occupation": self.occupation, "energy": self.energy}
+
+
+@dataclass(frozen=True, eq=False)
+class RadialData:
+    """Radial functions of a converged atom.
+
+    ``r``/``weights`` are the quadrature points (flattened) and weights (dr);
+    ``density`` (ns, N) spin densities ρ_σ(r) in bohr⁻³ (ns = 1: total);
+    ``v_hartree`` and ``v_xc`` (ns, N) potentials in hartree; ``orbitals``
+    maps (n, l, spin) to u(r) = r R(r) at the points.  ``mesh`` and
+    ``coefficients`` allow evaluation anywhere through :meth:`density_at`.
+    """
+
+    r: np.ndarray
+    weights: np.ndarray
+    density: np.ndarray
+    v_hartree: np.ndarray
+    v_xc: np.ndarray
+    orbitals: dict
+    mesh: RadialMesh
+    coefficients: dict  # (n, l, spin) -> (coefficient vector, occupation)
+
+    def density_at(self, r: np.ndarray) -> np.ndarray:
+        """Spin densities (ns, len(r)) at arbitrary radii (0 beyond r_max)."""
+        r = np.atleast_1d(np.asarray(r, dtype=float))
+        spins = sorted({k[2] for k in self.coefficients})
+        out = np.zeros((len(spins), r.size))
+        rr = np.maximum(r, 1e-300)
+        for (n, l, s), (c, occ) in self.coefficients.items():
+            u, _ = self.mesh.values_at(c, rr)
+            out[spins.index(s)] += shell_density(rr, u, occ)
+        return out
+
+    def to_dict(self) -> dict:
+        return {
+            "r": self.r.tolist(),
+            "weights": self.weights.tolist(),
+            "density": self.density.tolist(),
+            "v_hartree": self.v_hartree.tolist(),
+            "v_xc": self.v_xc.tolist(),
+            "orbitals": {f"{n}{L_LETTERS[l]}_{s}": u.tolist() for (n, l, s), u in self.orbitals.items()},
+        }
+
+
+@dataclass(frozen=True, eq=False)
+class AtomResult:
+    """A converged (or best-effort) spherical atom.
+
+    Energies in hartree.  ``components`` holds kinetic, nuclear_attraction,
+    hartree, exchange_correlation (semilocal part) and exact_exchange.
+    ``virial_ratio`` is −V/T; ``virial_residual`` is the scaling-virial
+    defect (2T + V_ne + E_H + dE_xc[ρ_λ]/dλ)/|E|, zero for an exact
+    solution of any functional; ``gauss_law_error`` is |∫ρ − N|;
+    ``error_estimate`` bounds the numerical error of ``total_energy``
+    (mesh refinement difference plus SCF tolerance).
+    """
+
+    element: str
+    Z: int
+    charge: float
+    xc: str
+    functional: dict
+    spin: str
+    configuration: str
+    total_energy: float
+    components: dict
+    orbitals: tuple
+    converged: bool
+    iterations: int
+    history: tuple
+    virial_ratio: float
+    virial_residual: float
+    gauss_law_error: float
+    error_estimate: float
+    warnings: tuple
+    settings: dict
+    version: str
+    timings: dict = field(default_factory=dict)
+    radial: RadialData | None = None
+
+    @property
+    def homo(self) -> Orbital:
+        occupied = [o for o in self.orbitals if o.occupation > 1e-12]
+        return max(occupied, key=lambda o: o.energy)
+
+    @property
+    def homo_energy(self) -> float:
+        return self.homo.energy
+
+    @property
+    def n_electrons(self) -> float:
+        return float(self.Z - self.charge)
+
+    def to_dict(self, include_radial: bool = False) -> dict[str, Any]:
+        d = {
+            "element": self.element,
+            "Z": self.Z,
+            "charge": self.charge,
+            "xc": self.xc,
+            "functional": dict(self.functional),
+            "spin": self.spin,
+            "configuration": self.configuration,
+            "total_energy": self.total_energy,
+            "components": dict(self.components),
+            "orbitals": [o.to_dict() for o in self.orbitals],
+            "homo_energy": self.homo_energy,
+            "converged": self.converged,
+            "iterations": self.iterations,
+            "history": [asdict(h) for h in self.history],
+            "virial_ratio": self.virial_ratio,
+            "virial_residual": self.virial_residual,
+            "gauss_law_error": self.gauss_law_error,
+            "error_estimate": self.error_estimate,
+            "warnings": list(self.warnings),
+            "settings": dict(self.settings),
+            "version": self.version,
+            "timings": dict(self.timings),
+        }
+        if include_radial and self.radial is not None:
+            d["radial"] = self.radial.to_dict()
+        return d
+

@@ -85,8 +85,9 @@ class AtomResult:
     ``virial_ratio`` is −V/T; ``virial_residual`` is the scaling-virial
     defect (2T + V_ne + E_H + dE_xc[ρ_λ]/dλ)/|E|, zero for an exact
     solution of any functional; ``gauss_law_error`` is |∫ρ − N|;
-    ``error_estimate`` bounds the numerical error of ``total_energy``
-    (mesh refinement difference plus SCF tolerance).
+    ``error_estimate`` estimates the numerical error of ``total_energy``
+    (refined-mesh difference plus the last SCF energy change; None when not
+    requested).
     """
 
     element: str
@@ -105,7 +106,7 @@ class AtomResult:
     virial_ratio: float
     virial_residual: float
     gauss_law_error: float
-    error_estimate: float
+    error_estimate: float | None
     warnings: tuple
     settings: dict
     version: str

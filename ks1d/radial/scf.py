@@ -97,12 +97,14 @@ class _Channel:
 class AtomicProblem:
     """The discretised atom: mesh, fixed matrices, channels and functional."""
 
-    def __init__(self, Z: int, config: Configuration, func: Functional, spec: MeshSpec):
+    def __init__(self, Z: int, config: Configuration, func: Functional, spec: MeshSpec,
+                 interacting: bool = True):
         if func.is_hybrid:
             raise UnsupportedFunctional(
                 f"'{func.name}' is a {func.kind}; exact exchange is not supported yet by the radial solver"
             )
         self.Z, self.config, self.func, self.spec = Z, config, func, spec
+        self.interacting = interacting
         self.mesh = m = RadialMesh.for_atom(Z, spec)
         one = np.ones_like(m.r)
         self.S = m.assemble(m.weighted_blocks(one))
@@ -152,10 +154,12 @@ class AtomicProblem:
     def potentials(self, x: np.ndarray) -> dict:
         """Local potential pieces of input state x for building Hamiltonians."""
         m = self.mesh
+        shape = m.r.shape
+        if not self.interacting:
+            return {"v_h": np.zeros(shape), "vrho": np.zeros((self.ns,) + shape), "g": None, "vtau": None}
         rho_tot = x[0].sum(axis=0)
         v_h = self.poisson.hartree_potential(rho_tot)
         xcv = self._xc(x)
-        shape = m.r.shape
         out = {"v_h": v_h, "vrho": xcv.vrho.reshape((self.ns,) + shape), "g": None, "vtau": None}
         if self.func.needs_gradient:
             vs = xcv.vsigma.reshape((-1,) + shape)
@@ -223,11 +227,15 @@ class AtomicProblem:
                 c = C[:, n - ch.l - 1]
                 kin += f * c @ Tl @ c
         rho = x[0].sum(axis=0)
-        v_h = self.poisson.hartree_potential(rho)
-        xcv = self._xc(x)
-        e_xc = float(np.sum(xcv.e * (FOUR_PI * m.r**2 * m.w).ravel()))
         e_ne = -self.Z * m.integrate(FOUR_PI * m.r * rho)
-        e_h = hartree_energy(m, rho, v_h)
+        if self.interacting:
+            v_h = self.poisson.hartree_potential(rho)
+            xcv = self._xc(x)
+            e_xc = float(np.sum(xcv.e * (FOUR_PI * m.r**2 * m.w).ravel()))
+            e_h = hartree_energy(m, rho, v_h)
+        else:
+            v_h, e_xc, e_h = np.zeros_like(rho), 0.0, 0.0
+            xcv = evaluate_xc(resolve_functional("hf"), x[0].reshape(self.ns, -1))
         return {"kinetic": float(kin), "nuclear_attraction": float(e_ne), "hartree": float(e_h),
                 "exchange_correlation": e_xc, "exact_exchange": 0.0,
                 "total": float(kin + e_ne + e_h + e_xc), "_v_h": v_h, "_xc": xcv}
@@ -280,7 +288,7 @@ class AtomicProblem:
                         x[1, ch.spin] += lam**4 * shell_density_derivative(rs, u, du, f)
                     if self.func.needs_tau:
                         x[-1, ch.spin] += lam**5 * shell_tau(rs, u, du, ch.l, f)
-            vals.append(float(np.sum(self._xc(x).e * (FOUR_PI * m.r**2 * m.w).ravel())))
+            vals.append(float(np.sum(self._xc(x).e * (FOUR_PI * m.r**2 * m.w).ravel())) if self.interacting else 0.0)
         return (vals[0] - vals[1]) / (2 * h)
 
 
@@ -324,7 +332,8 @@ def _anion_spec(spec: MeshSpec, charge: float) -> MeshSpec:
 
 def solve_atom(element, xc: str = "lda", charge: float = 0, spin="polarized", config: str | None = None, *,
                precision: str = "normal", mesh: MeshSpec | None = None, scf: SCFSettings | None = None,
-               estimate_error: bool = True, raise_on_failure: bool = True) -> AtomResult:
+               estimate_error: bool = True, raise_on_failure: bool = True,
+               electron_interaction: bool = True) -> AtomResult:
     """Solve the Kohn–Sham equations of a spherical atom to the basis-set limit.
 
     element: symbol, name or Z (1–92); xc: alias or libxc identifiers
@@ -334,6 +343,8 @@ def solve_atom(element, xc: str = "lda", charge: float = 0, spin="polarized", co
     "normal" or "high" (ignored when ``mesh`` is given).  With
     ``estimate_error`` the converged density is re-converged on a refined
     mesh and the energy difference is reported as ``error_estimate``.
+    ``electron_interaction=False`` switches off Hartree and exchange-
+    correlation terms (independent electrons in −Z/r: a hydrogenic check).
 
     Raises InputError subclasses for bad input and ConvergenceError (with the
     iteration history) if the SCF does not converge.
@@ -357,7 +368,7 @@ def solve_atom(element, xc: str = "lda", charge: float = 0, spin="polarized", co
             raise SettingsError(f"precision must be one of {', '.join(PRECISION)}, got {precision!r}")
         mesh = _anion_spec(PRECISION[precision], charge)
     settings = scf or SCFSettings()
-    problem = AtomicProblem(el.Z, cfg, func, mesh)
+    problem = AtomicProblem(el.Z, cfg, func, mesh, electron_interaction)
     orbitals, en, x, history, converged = run_scf(problem, settings, charge)
     if not converged and raise_on_failure:
         raise ConvergenceError(
@@ -365,12 +376,13 @@ def solve_atom(element, xc: str = "lda", charge: float = 0, spin="polarized", co
             f"{len(history)} iterations", history)
     t_scf = time.perf_counter() - t0
 
-    error = abs(history[-1].delta_energy) if np.isfinite(history[-1].delta_energy) else np.inf
+    error = None
     if estimate_error and converged:
-        fine = AtomicProblem(el.Z, cfg, func, _refined(mesh))
+        fine = AtomicProblem(el.Z, cfg, func, _refined(mesh), electron_interaction)
         start = fine.state_from(_radial_data(problem, orbitals, en, x))
         _, en_f, _, _, conv_f = run_scf(fine, settings, charge, start)
-        error += abs(en_f["total"] - en["total"]) if conv_f else np.inf
+        if conv_f:
+            error = abs(en_f["total"] - en["total"]) + abs(history[-1].delta_energy)
     return _make_result(el, charge, func, spin, cfg, problem, orbitals, en, x, history, converged,
                         error, settings, mesh, {"scf": t_scf, "total": time.perf_counter() - t0})
 
@@ -407,7 +419,8 @@ def _make_result(el, charge, func, spin, cfg, problem, orbitals, en, x, history,
     potential = comp["nuclear_attraction"] + comp["hartree"] + comp["exchange_correlation"] + comp["exact_exchange"]
     virial_ratio = -potential / comp["kinetic"]
     dxc = problem.scaled_xc_derivative(orbitals)
-    virial_res = (2 * comp["kinetic"] + comp["nuclear_attraction"] + comp["hartree"] + dxc) / abs(en["total"])
+    virial_res = (2 * comp["kinetic"] + comp["nuclear_attraction"] + comp["hartree"] + comp["exact_exchange"]
+                  + dxc) / abs(en["total"])
     gauss = abs(total_charge(m, x[0].sum(axis=0)) - problem.n_electrons)
     warnings = []
     for o in orbs:
@@ -422,7 +435,7 @@ def _make_result(el, charge, func, spin, cfg, problem, orbitals, en, x, history,
         spin=spin_label, configuration=cfg.label(), total_energy=float(en["total"]), components=comp,
         orbitals=tuple(orbs), converged=converged, iterations=len(history), history=tuple(history),
         virial_ratio=float(virial_ratio), virial_residual=float(virial_res), gauss_law_error=float(gauss),
-        error_estimate=float(error), warnings=tuple(warnings),
+        error_estimate=None if error is None else float(error), warnings=tuple(warnings),
         settings={"mesh": mesh.to_dict(), "basis_size": m.size, "scf": vars(settings).copy()},
         version=__version__, timings=timings, radial=_radial_data(problem, orbitals, en, x),
     )

@@ -83,7 +83,11 @@ class ConvergenceError(CalculationError):
             return "no iterations were recorded"
         tail = h[-min(6, len(h)):]
         res = [r.residual for r in tail]
-        if len(res) >= 3 and res[-1] > 0.5 * res[0] and max(res) / max(min(res), 1e-300) > 3:
+        best = min(h, key=lambda r: r.residual if r.residual == r.residual else float("inf"))
+        if res[-1] != res[-1] or res[-1] > 100 * best.residual:
+            kind = (f"the SCF diverged after reaching residual {best.residual:.1e} at iteration "
+                    f"{best.iteration}; try smaller mixing or a different starting point")
+        elif len(res) >= 3 and res[-1] > 0.5 * res[0] and max(res) / max(min(res), 1e-300) > 3:
             kind = "the residual oscillates; try stronger damping (smaller mixing) or smearing"
         elif len(res) >= 3 and res[-1] > 0.9 * res[0]:
             kind = "the residual stalls; try more iterations, a different mixer or smearing"

@@ -148,6 +148,14 @@ class RadialMesh:
         out = np.bincount(flat, weights=blocks[mask], minlength=self.size * self.size)
         return out.reshape(self.size, self.size)
 
+    def assemble_sparse(self, blocks: np.ndarray):
+        """Sum element blocks into a sparse (CSR) global matrix of bandwidth p."""
+        from scipy.sparse import csr_matrix
+
+        flat, mask, _ = self._scatter
+        rows, cols = np.divmod(flat, self.size)
+        return csr_matrix((blocks[mask], (rows, cols)), shape=(self.size, self.size))
+
     def assemble_vector(self, local: np.ndarray) -> np.ndarray:
         """Sum element vectors (nel, p+1) into a global vector."""
         keep = self.dof >= 0

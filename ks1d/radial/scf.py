@@ -36,6 +36,7 @@ from ..errors import ConvergenceError, IterationRecord, SettingsError, Unsupport
 from ..mixing import PulayMixer
 from ..occupations import Configuration, build_configuration
 from ..xc import Functional, evaluate_xc, resolve_functional
+from .exchange import ExchangeBuilder
 from .density import FOUR_PI, shell_density, shell_density_derivative, shell_tau
 from .mesh import MeshSpec, RadialMesh
 from .poisson import PoissonSolver, hartree_energy, total_charge
@@ -99,9 +100,10 @@ class AtomicProblem:
 
     def __init__(self, Z: int, config: Configuration, func: Functional, spec: MeshSpec,
                  interacting: bool = True):
-        if func.is_hybrid:
+        if func.is_range_separated:
             raise UnsupportedFunctional(
-                f"'{func.name}' is a {func.kind}; exact exchange is not supported yet by the radial solver"
+                f"'{func.name}' is a {func.kind}; the radial solver does not support range-separated "
+                "exact exchange yet (global hybrids and HF are supported; use the Gaussian solver for this one)"
             )
         self.Z, self.config, self.func, self.spec = Z, config, func, spec
         self.interacting = interacting
@@ -121,6 +123,55 @@ class AtomicProblem:
                     self.channels.append(_Channel(s, l, sh))
         self.n_electrons = config.n_electrons
         self.ncomp = 1 + func.needs_gradient + func.needs_tau
+        self.exx = func.exx_sr if (func.is_hybrid and interacting) else 0.0
+        self.exchange = ExchangeBuilder(m) if self.exx else None
+        self._dens_shape = (self.ncomp, self.ns) + m.r.shape
+        self._dens_size = int(np.prod(self._dens_shape))
+
+    # ---------------------------------------------------------------- SCF state
+    # The mixed SCF state is one flat vector: the density components (ρ, ρ′, τ)
+    # per spin at the quadrature points, followed by the exchange matrices of
+    # the (spin, l) channels for hybrids (Fock-matrix mixing of the non-local part).
+    def pack(self, dens: np.ndarray, K: dict | None) -> np.ndarray:
+        parts = [dens.ravel()]
+        if self.exchange is not None:
+            parts += [K[(ch.spin, ch.l)].ravel() for ch in self.channels]
+        return np.concatenate(parts)
+
+    def unpack(self, x: np.ndarray) -> tuple[np.ndarray, dict | None]:
+        dens = x[:self._dens_size].reshape(self._dens_shape)
+        if self.exchange is None:
+            return dens, None
+        n2 = self.mesh.size ** 2
+        K = {}
+        for i, ch in enumerate(self.channels):
+            a = self._dens_size + i * n2
+            K[(ch.spin, ch.l)] = x[a:a + n2].reshape(self.mesh.size, self.mesh.size)
+        return dens, K
+
+    def state(self, orbitals: dict) -> np.ndarray:
+        """Packed SCF state of a set of orbitals."""
+        return self.pack(self.density_state(orbitals), self.exchange_matrices(orbitals))
+
+    def exchange_matrices(self, orbitals: dict) -> dict | None:
+        """K^(l)_σ per channel from the occupied orbitals of the same spin (None without exact exchange)."""
+        if self.exchange is None:
+            return None
+        m = self.mesh
+        per_spin = {s: [] for s in range(self.ns)}
+        for ch in self.channels:
+            C, _ = orbitals[(ch.spin, ch.l)]
+            u, _ = m.values(C)
+            for n, f in ch.shells:
+                f_sigma = f if self.ns == 2 else 0.5 * f
+                per_spin[ch.spin].append((ch.l, u[n - ch.l - 1], f_sigma))
+        K = {}
+        for s in range(self.ns):
+            ls = [ch.l for ch in self.channels if ch.spin == s]
+            Ks = self.exchange.matrices(per_spin[s], ls)
+            for l in ls:
+                K[(s, l)] = Ks[l]
+        return K
 
     # ---------------------------------------------------------------- densities
     def density_state(self, orbitals: dict) -> np.ndarray:
@@ -147,7 +198,11 @@ class AtomicProblem:
             grad = np.zeros((self.ns, 3, rho.shape[1]))
             grad[:, 0] = x[1].reshape(self.ns, -1)
         if self.func.needs_tau:
-            tau = np.maximum(x[-1], 0.0).reshape(self.ns, -1)
+            # a mixed input state need not satisfy the von Weizsäcker bound τ ≥ |∇ρ|²/(8ρ)
+            # that every set of orbitals obeys; clamp to it so that iso-orbital indicators stay physical
+            tau = x[-1].reshape(self.ns, -1)
+            tau_w = grad[:, 0] ** 2 / (8.0 * np.maximum(rho, 1e-300))
+            tau = np.maximum(tau, tau_w)
         return evaluate_xc(self.func, rho, grad, tau)
 
     # ---------------------------------------------------------------- potentials
@@ -172,8 +227,8 @@ class AtomicProblem:
             out["vtau"] = xcv.vtau.reshape((self.ns,) + shape)
         return out
 
-    def hamiltonians(self, pot: dict) -> dict:
-        """H[(spin, l)] = T + l(l+1)/2 C + V_loc,σ (+ GGA and τ terms)."""
+    def hamiltonians(self, pot: dict, K: dict | None = None) -> dict:
+        """H[(spin, l)] = T + l(l+1)/2 C + V_loc,σ (+ GGA and τ terms) + a K_σ^(l)."""
         m = self.mesh
         base = {}
         for s in range(self.ns):
@@ -199,6 +254,8 @@ class AtomicProblem:
             h = self.T + Vs + cent * self.C
             if tau_c is not None and ch.l > 0:
                 h = h + ch.l * (ch.l + 1) * tau_c
+            if K is not None:
+                h = h + self.exx * K[(ch.spin, ch.l)]
             H[(ch.spin, ch.l)] = h
         return H
 
@@ -216,16 +273,18 @@ class AtomicProblem:
         return out
 
     # ---------------------------------------------------------------- energies
-    def energy(self, orbitals: dict, x: np.ndarray) -> dict:
-        """Energy components of the output orbitals and their density state x."""
+    def energy(self, orbitals: dict, x: np.ndarray, K: dict | None = None) -> dict:
+        """Energy components of the output orbitals, their density state x and exchange matrices K."""
         m = self.mesh
-        kin = 0.0
+        kin = exx = 0.0
         for ch in self.channels:
             C, _ = orbitals[(ch.spin, ch.l)]
             Tl = self.T + 0.5 * ch.l * (ch.l + 1) * self.C
             for n, f in ch.shells:
                 c = C[:, n - ch.l - 1]
                 kin += f * c @ Tl @ c
+                if K is not None:
+                    exx += 0.5 * self.exx * f * c @ K[(ch.spin, ch.l)] @ c
         rho = x[0].sum(axis=0)
         e_ne = -self.Z * m.integrate(FOUR_PI * m.r * rho)
         if self.interacting:
@@ -237,38 +296,39 @@ class AtomicProblem:
             v_h, e_xc, e_h = np.zeros_like(rho), 0.0, 0.0
             xcv = evaluate_xc(resolve_functional("hf"), x[0].reshape(self.ns, -1))
         return {"kinetic": float(kin), "nuclear_attraction": float(e_ne), "hartree": float(e_h),
-                "exchange_correlation": e_xc, "exact_exchange": 0.0,
-                "total": float(kin + e_ne + e_h + e_xc), "_v_h": v_h, "_xc": xcv}
+                "exchange_correlation": e_xc, "exact_exchange": float(exx),
+                "total": float(kin + e_ne + e_h + e_xc + exx), "_v_h": v_h, "_xc": xcv}
 
     def residual_norm(self, dx: np.ndarray) -> float:
-        """∫ |Δρ| d³r summed over spins."""
+        """∫ |Δρ| d³r summed over spins, plus max |ΔK_ij| for exact exchange."""
         m = self.mesh
-        return float(np.sum(np.abs(dx[0]) * (FOUR_PI * m.r**2 * m.w)[None]))
+        dens, K = self.unpack(dx)
+        res = float(np.sum(np.abs(dens[0]) * (FOUR_PI * m.r**2 * m.w)[None]))
+        if K is not None:
+            res += self.exx * max(float(np.max(np.abs(k))) for k in K.values())
+        return res
 
     def initial_state(self, charge: float) -> np.ndarray:
+        """State of the orbitals in the Thomas–Fermi starting potential."""
         m = self.mesh
-        v0 = thomas_fermi_potential(self.Z, m.r, charge)
-        blocks = m.weighted_blocks(v0)
-        V = m.assemble(blocks)
+        V = m.assemble(m.weighted_blocks(thomas_fermi_potential(self.Z, m.r, charge)))
         H = {(ch.spin, ch.l): self.T + V + 0.5 * ch.l * (ch.l + 1) * self.C for ch in self.channels}
-        return self.density_state(self.diagonalise(H))
+        return self.state(self.diagonalise(H))
 
     def state_from(self, radial: RadialData) -> np.ndarray:
-        """Density state of a previous solution interpolated onto this mesh (for restarts)."""
+        """State of a previous solution's orbitals, L²-projected onto this mesh (for restarts)."""
         m = self.mesh
-        x = np.zeros((self.ncomp, self.ns) + m.r.shape)
-        spins = sorted({k[2] for k in radial.coefficients})
-        flat = m.r.ravel()
-        for (n, l, s), (c, occ) in radial.coefficients.items():
-            u, du = radial.mesh.values_at(c, flat)
-            u, du = u.reshape(m.r.shape), du.reshape(m.r.shape)
-            si = spins.index(s) if self.ns == 2 else 0
-            x[0, si] += shell_density(m.r, u, occ)
-            if self.func.needs_gradient:
-                x[1, si] += shell_density_derivative(m.r, u, du, occ)
-            if self.func.needs_tau:
-                x[-1, si] += shell_tau(m.r, u, du, l, occ)
-        return x
+        names = ("up", "down") if self.ns == 2 else ("both",)
+        orbitals = {}
+        for ch in self.channels:
+            C = np.zeros((m.size, ch.count))
+            for n, _ in ch.shells:
+                c_old, _ = radial.coefficients[(n, ch.l, names[ch.spin])]
+                u, _ = radial.mesh.values_at(c_old, m.r.ravel())
+                b = m.assemble_vector(np.einsum("qi,eq->ei", m.phi, m.w * u.reshape(m.r.shape)))
+                C[:, n - ch.l - 1] = sl.solve(self.S, b, assume_a="pos")
+            orbitals[(ch.spin, ch.l)] = (C, None)
+        return self.state(orbitals)
 
     # ---------------------------------------------------------------- checks
     def scaled_xc_derivative(self, orbitals: dict, h: float = 1e-4) -> float:
@@ -296,15 +356,17 @@ def run_scf(problem: AtomicProblem, settings: SCFSettings, charge: float, start:
     """Iterate to self-consistency; returns (orbitals, energy dict, state, history, converged)."""
     m = problem.mesh
     x_in = problem.initial_state(charge) if start is None else start
-    weights = np.broadcast_to(FOUR_PI * m.r**2 * m.w, x_in.shape).copy()
-    weights[1:] = 0.0  # DIIS metric on the density residual only
+    weights = np.zeros_like(x_in)  # DIIS metric on the density residual only
+    weights[:m.r.size * problem.ns] = np.broadcast_to(FOUR_PI * m.r**2 * m.w, (problem.ns,) + m.r.shape).ravel()
     mixer = PulayMixer(alpha=settings.mixing, history=settings.history, linear_steps=1, weights=weights)
     history: list[IterationRecord] = []
     e_prev = np.inf
     for it in range(1, settings.max_iterations + 1):
-        orbitals = problem.diagonalise(problem.hamiltonians(problem.potentials(x_in)))
-        x_out = problem.density_state(orbitals)
-        en = problem.energy(orbitals, x_out)
+        dens_in, K_in = problem.unpack(x_in)
+        orbitals = problem.diagonalise(problem.hamiltonians(problem.potentials(dens_in), K_in))
+        x_out = problem.state(orbitals)
+        dens_out, K_out = problem.unpack(x_out)
+        en = problem.energy(orbitals, dens_out, K_out)
         dx = x_out - x_in
         res = problem.residual_norm(dx)
         de = en["total"] - e_prev
@@ -312,10 +374,10 @@ def run_scf(problem: AtomicProblem, settings: SCFSettings, charge: float, start:
         if not np.isfinite(en["total"]) or not np.isfinite(res):
             break
         if abs(de) < settings.energy_tol and res < settings.density_tol:
-            return orbitals, en, x_out, history, True
+            return orbitals, en, dens_out, history, True
         e_prev = en["total"]
         x_in = mixer.step(x_in, dx)
-    return orbitals, en, x_out, history, False
+    return orbitals, en, dens_out, history, False
 
 
 def _refined(spec: MeshSpec) -> MeshSpec:

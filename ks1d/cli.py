@@ -15,7 +15,7 @@ import sys
 from . import __version__
 from .errors import CalculationError, InputError
 
-COMMANDS = ("atom", "molecule")
+COMMANDS = ("atom", "molecule", "sweep", "refs")
 
 
 class _Parser(argparse.ArgumentParser):

@@ -187,6 +187,15 @@ def resolve_functional(name: str) -> Functional:
     if key in ("hf", "hartree-fock"):
         return Functional(name=name, libxc="hf", family="hf", exx_sr=1.0, exx_lr=1.0)
     spec = _canonical(ALIASES.get(key, key))
+    try:
+        return _classify(name, spec)
+    except (ValueError, KeyError) as exc:  # libxc/pyscf refuse the combination
+        if isinstance(exc, (UnknownFunctional, UnsupportedFunctional)):
+            raise
+        raise UnknownFunctional(f"libxc cannot combine '{name}': {exc}") from None
+
+
+def _classify(name: str, spec: str) -> Functional:
     lx = _libxc()
     if lx.needs_laplacian(spec):
         raise UnsupportedFunctional(

@@ -385,11 +385,19 @@ def _refined(spec: MeshSpec) -> MeshSpec:
                    r_first=spec.r_first / 2, r_max=spec.r_max * 1.25)
 
 
+#: Confinement radius (bohr) of anions.  Semilocal functionals often leave the extra
+#: electron of an anion unbound (ε_HOMO > 0, self-interaction error); such an anion has
+#: no basis-set limit, its density would leak to any r_max.  A 20 bohr box is a common
+#: confinement (comparable to the reach of diffuse Gaussian basis sets, common practice);
+#: the result then reports the unbound orbital and the dependence on r_max.
+ANION_R_MAX = 20.0
+
+
 def _anion_spec(spec: MeshSpec, charge: float) -> MeshSpec:
-    """Anions' outer electrons spread further out: enlarge r_max."""
+    """Anions are solved in a box of radius ANION_R_MAX (see above)."""
     if charge >= 0:
         return spec
-    return replace(spec, r_max=max(spec.r_max, 80.0), n_elements=spec.n_elements + 6)
+    return replace(spec, r_max=min(spec.r_max, ANION_R_MAX))
 
 
 def solve_atom(element, xc: str = "lda", charge: float = 0, spin="polarized", config: str | None = None, *,
@@ -488,7 +496,18 @@ def _make_result(el, charge, func, spin, cfg, problem, orbitals, en, x, history,
     for o in orbs:
         if o.occupation > 0 and o.energy >= 0:
             warnings.append(f"occupied orbital {o.label} ({o.spin}) is unbound: ε = {o.energy:+.6f} Ha ≥ 0; "
-                            "its density is confined by the mesh boundary r_max and the energy depends on it")
+                            f"its density is confined by the mesh boundary r_max = {m.r_max:g} bohr and the "
+                            "energy depends on that radius")
+    if problem.exx:
+        partial = [s for s in cfg.shells
+                   for f in ((s.up, s.down) if cfg.polarized else (s.occupation / 2,))
+                   if 1e-12 < f < s.capacity_per_spin - 1e-12]
+        if partial:
+            warnings.append(
+                "exact exchange of the fractionally occupied sub-shell(s) "
+                + ", ".join(sorted({x.label for x in partial}))
+                + " uses the equal-fractional-occupation (ensemble) form; for open shells its energy lies "
+                "above that of any single determinant (by ~0.1-0.2 Ha in HF for C or O)")
     if gauss > 1e-6:
         warnings.append(f"Gauss's law check: ∫ρ misses {gauss:.1e} electrons inside r_max = {m.r_max} bohr")
     spin_label = spin if isinstance(spin, str) else f"2S={spin}"

@@ -1,0 +1,264 @@
+"""Systems a sweep runs over: atoms and ions by symbol, molecules from XYZ.
+
+A :class:`System` is an immutable description with everything a solver call
+needs (element and charge, or XYZ text, charge and multiplicity).  Its
+:meth:`System.identity` is what enters the job hash, so editing an XYZ file
+gives new jobs while renaming nothing does not.
+
+Atomic ground-state multiplicities follow Hund's first rule applied to each
+open subshell of the ground configuration in :mod:`ks1d.elements`:
+2S + 1 = 1 + Σ_shells min(n, 2(2l+1) − n).
+"""
+from __future__ import annotations
+
+import re
+from dataclasses import dataclass, field
+from typing import Any
+
+from .. import elements
+from ..errors import ConfigurationError, GeometryError, InputError
+
+_L_OF = {"s": 0, "p": 1, "d": 2, "f": 3, "g": 4}
+_ION = re.compile(r"^([A-Za-z]{1,2})(\d*)([+-])?$")
+
+
+@dataclass(frozen=True)
+class System:
+    """One atom, ion or molecule.
+
+    ``kind`` is ``"atom"`` (solved on the radial grid unless a property asks
+    for a Gaussian basis) or ``"molecule"``.  ``pair`` holds two
+    multiplicities for spin-state splittings; ``xyz_b`` the geometry of the
+    second state when the two states have their own geometries (adiabatic).  For atoms ``symbol``/``charge``
+    are set and ``xyz`` is built on demand; for molecules ``xyz`` holds the
+    geometry (Å) as XYZ text.  ``dataset``/``key`` name where a built-in
+    system came from (e.g. ``"g2-1"``/``"CH4"``) so that references can be
+    looked up; ``source`` says the same in words.
+    """
+
+    name: str
+    kind: str
+    symbol: str | None = None
+    charge: int = 0
+    multiplicity: int | None = None
+    xyz: str | None = None
+    dataset: str | None = None
+    key: str | None = None
+    source: str = ""
+    pair: tuple[int, ...] = field(default=())
+    xyz_b: str | None = None
+
+    # ------------------------------------------------------------------ helpers
+    @property
+    def is_atom(self) -> bool:
+        return self.kind == "atom"
+
+    @property
+    def symbols(self) -> tuple[str, ...]:
+        if self.is_atom:
+            return (self.symbol,)
+        return tuple(line.split()[0] for line in _xyz_atom_lines(self.xyz))
+
+    @property
+    def is_diatomic(self) -> bool:
+        return not self.is_atom and len(self.symbols) == 2
+
+    def geometry_xyz(self) -> str:
+        """XYZ text of the system (a single atom at the origin for atoms)."""
+        if self.xyz is not None:
+            return self.xyz
+        return f"1\n{self.name}\n{self.symbol} 0.0 0.0 0.0\n"
+
+    def ground_multiplicity(self) -> int:
+        """2S+1 of the system as used for Gaussian-basis calculations."""
+        if self.multiplicity is not None:
+            return self.multiplicity
+        if self.is_atom:
+            return atom_multiplicity(self.symbol, self.charge)
+        nelec = sum(elements.atomic_number(s) for s in self.symbols) - self.charge
+        return 1 if nelec % 2 == 0 else 2
+
+    def identity(self) -> dict[str, Any]:
+        """The fields that define the calculation (what the job hash sees)."""
+        d: dict[str, Any] = {"kind": self.kind, "charge": self.charge}
+        if self.is_atom:
+            d["symbol"] = self.symbol
+        else:
+            d["xyz"] = normalise_xyz(self.xyz)
+        if self.multiplicity is not None:
+            d["multiplicity"] = self.multiplicity
+        if self.pair:
+            d["pair"] = list(self.pair)
+        if self.xyz_b is not None:
+            d["xyz_b"] = normalise_xyz(self.xyz_b)
+        return d
+
+    def to_dict(self) -> dict[str, Any]:
+        return {
+            "name": self.name,
+            "kind": self.kind,
+            "symbol": self.symbol,
+            "charge": self.charge,
+            "multiplicity": self.multiplicity,
+            "xyz": self.xyz,
+            "dataset": self.dataset,
+            "key": self.key,
+            "source": self.source,
+            "pair": list(self.pair),
+            "xyz_b": self.xyz_b,
+        }
+
+    @classmethod
+    def from_dict(cls, d: dict[str, Any]) -> "System":
+        d = dict(d)
+        d["pair"] = tuple(d.get("pair") or ())
+        return cls(**d)
+
+
+# ---------------------------------------------------------------------- atoms
+def expand_configuration(config: str) -> list[tuple[int, int, int]]:
+    """'[Ar] 3d6 4s2' → [(1,0,2), (2,0,2), (2,1,6), ..., (3,2,6), (4,0,2)] as (n, l, occupation)."""
+    text = config.strip()
+    out: list[tuple[int, int, int]] = []
+    m = re.match(r"^\[([A-Z][a-z]?)\]\s*(.*)$", text)
+    if m:
+        core = elements.CORES.get(m.group(1))
+        if core is None:
+            raise ConfigurationError(f"unknown core [{m.group(1)}] in configuration '{config}'")
+        out.extend(expand_configuration(core))
+        text = m.group(2)
+    for tok in text.split():
+        t = re.match(r"^(\d+)([spdfg])(\d+)$", tok)
+        if not t:
+            raise ConfigurationError(f"cannot read subshell '{tok}' in configuration '{config}'")
+        out.append((int(t.group(1)), _L_OF[t.group(2)], int(t.group(3))))
+    return out
+
+
+def hund_unpaired(config: str) -> int:
+    """Number of unpaired electrons by Hund's first rule: Σ min(n, 2(2l+1) − n)."""
+    total = 0
+    for _, l, occ in expand_configuration(config):
+        cap = 2 * (2 * l + 1)
+        if occ > cap:
+            raise ConfigurationError(f"subshell with l={l} holds at most {cap} electrons, got {occ}")
+        total += min(occ, cap - occ)
+    return total
+
+
+def atom_multiplicity(symbol: str, charge: int = 0) -> int:
+    """Ground-state 2S+1 of a neutral atom (Hund's rule on the NIST ground configuration).
+
+    Ions are treated by removing electrons from the outermost subshell listed
+    last (cations) or adding to it (anions); this is used only to pick a
+    multiplicity for Gaussian-basis runs of ions.
+    """
+    el = elements.element(symbol)
+    if charge == 0:
+        return hund_unpaired(el.ground_configuration) + 1
+    nelec = el.Z - charge
+    if nelec <= 0:
+        raise ConfigurationError(f"{el.symbol} with charge {charge:+d} has no electrons")
+    shells = expand_configuration(el.ground_configuration)
+    if charge > 0:
+        remove = charge
+        # remove from the highest-n shells first (4s before 3d, as for 3d ions)
+        order = sorted(range(len(shells)), key=lambda i: (shells[i][0], shells[i][1]), reverse=True)
+        occ = [s[2] for s in shells]
+        for i in order:
+            take = min(occ[i], remove)
+            occ[i] -= take
+            remove -= take
+            if remove == 0:
+                break
+        unpaired = sum(min(o, 2 * (2 * s[1] + 1) - o) for o, s in zip(occ, shells))
+    else:
+        n, l, o = shells[-1]
+        cap = 2 * (2 * l + 1)
+        add = -charge
+        unpaired = sum(min(s[2], 2 * (2 * s[1] + 1) - s[2]) for s in shells[:-1])
+        if o + add <= cap:
+            unpaired += min(o + add, cap - o - add)
+        else:  # fills the last shell and starts the next p (or s) shell
+            unpaired += 1 if (o + add - cap) % 2 else 0
+    return unpaired + 1
+
+
+def parse_atom(text: str) -> System:
+    """'Fe' → neutral Fe; 'Na+' / 'O-' / 'Fe2+' / 'O2-' → ions."""
+    m = _ION.match(text.strip())
+    if not m:
+        raise InputError(f"'{text}' is not an atom or ion such as 'Fe', 'Na+', 'O-' or 'Fe2+'")
+    sym = elements.symbol(m.group(1))
+    mag = int(m.group(2)) if m.group(2) else 1
+    if m.group(3) is None:
+        if m.group(2):
+            raise InputError(f"'{text}': a charge number needs a sign, e.g. '{sym}{m.group(2)}+'")
+        charge = 0
+    else:
+        charge = mag if m.group(3) == "+" else -mag
+    name = sym if charge == 0 else f"{sym}{'' if abs(charge) == 1 else abs(charge)}{'+' if charge > 0 else '-'}"
+    if elements.atomic_number(sym) - charge <= 0:
+        raise ConfigurationError(f"'{text}' has no electrons left")
+    return System(name=name, kind="atom", symbol=sym, charge=charge, source="element symbol")
+
+
+# ------------------------------------------------------------------ molecules
+def _xyz_atom_lines(xyz: str) -> list[str]:
+    lines = [ln for ln in xyz.strip().splitlines()]
+    if not lines:
+        raise GeometryError("empty XYZ geometry")
+    try:
+        n = int(lines[0].split()[0])
+    except (ValueError, IndexError):
+        raise GeometryError("an XYZ geometry starts with the atom count on its first line") from None
+    body = [ln for ln in lines[2:2 + n] if ln.strip()]
+    if len(body) != n:
+        raise GeometryError(f"XYZ geometry announces {n} atoms but has {len(body)} coordinate lines")
+    return body
+
+
+def normalise_xyz(xyz: str) -> str:
+    """Canonical XYZ text: count, empty comment, 'Sym x y z' with 8 decimals (for hashing)."""
+    rows = []
+    for ln in _xyz_atom_lines(xyz):
+        parts = ln.split()
+        if len(parts) < 4:
+            raise GeometryError(f"XYZ line '{ln.strip()}' needs a symbol and three coordinates")
+        try:
+            x, y, z = (float(v) for v in parts[1:4])
+        except ValueError:
+            raise GeometryError(f"XYZ line '{ln.strip()}' has a non-numeric coordinate") from None
+        rows.append(f"{elements.symbol(parts[0])} {x:.8f} {y:.8f} {z:.8f}")
+    return f"{len(rows)}\n\n" + "\n".join(rows) + "\n"
+
+
+def molecule_from_xyz_file(path: str, name: str | None = None, charge: int = 0,
+                           multiplicity: int | None = None) -> System:
+    import os
+
+    if not os.path.isfile(path):
+        raise GeometryError(f"XYZ file '{path}' does not exist")
+    with open(path, encoding="utf-8") as fh:
+        text = fh.read()
+    xyz = normalise_xyz(text)
+    stem = os.path.splitext(os.path.basename(path))[0]
+    return System(name=name or stem, kind="molecule", charge=int(charge), multiplicity=multiplicity,
+                  xyz=xyz, source=f"XYZ file {os.path.basename(path)}")
+
+
+def bond_length(system: System) -> float:
+    """Distance (Å) between the two atoms of a diatomic."""
+    import math
+
+    lines = _xyz_atom_lines(system.xyz)
+    if len(lines) != 2:
+        raise GeometryError(f"'{system.name}' is not a diatomic ({len(lines)} atoms)")
+    a, b = ([float(v) for v in ln.split()[1:4]] for ln in lines)
+    return math.dist(a, b)
+
+
+def diatomic_xyz(sym_a: str, sym_b: str, r_angstrom: float) -> str:
+    """XYZ text of a diatomic along z, centred at the origin."""
+    h = 0.5 * r_angstrom
+    return f"2\n\n{sym_a} 0.0 0.0 {-h:.10f}\n{sym_b} 0.0 0.0 {h:.10f}\n"

@@ -1,0 +1,40 @@
+"""Convergence of the radial total energy with mesh size, element order and r_max.
+
+For each atom and functional, prints E(n_elements, order) − E(reference mesh) in µHa,
+and the deviation of the named precision levels.  The reference mesh is far beyond
+"high" (40 elements of order 14, r_max 60 bohr).  Usage:
+
+    python benchmarks/bench_radial_convergence.py [SYMBOL ...]
+"""
+import sys
+
+import ks1d
+from ks1d.radial.mesh import MeshSpec
+from ks1d.radial.scf import PRECISION
+
+ATOMS = [("Ne", "lda", "restricted"), ("Fe", "pbe", "polarized"), ("Kr", "hf", "restricted"),
+         ("U", "lda", "restricted")]
+REFERENCE = MeshSpec(n_elements=40, order=14, r_first=0.02, r_max=60.0)
+
+
+def energy(sym, xc, spin, spec):
+    return ks1d.solve_atom(sym, xc=xc, spin=spin, mesh=spec, estimate_error=False).total_energy
+
+
+def main(argv):
+    atoms = [a for a in ATOMS if not argv or a[0] in argv]
+    for sym, xc, spin in atoms:
+        e_ref = energy(sym, xc, spin, REFERENCE)
+        print(f"\n{sym} {xc} {spin}: reference E = {e_ref:.10f} Ha  (deviations in µHa)")
+        print("n_el \\ order " + "".join(f"{p:>10d}" for p in (6, 8, 10, 12)))
+        for nel in (10, 14, 20, 26):
+            row = [(energy(sym, xc, spin, MeshSpec(n_elements=nel, order=p)) - e_ref) * 1e6 for p in (6, 8, 10, 12)]
+            print(f"{nel:>12d} " + "".join(f"{x:>10.3f}" for x in row))
+        for name, spec in PRECISION.items():
+            res = ks1d.solve_atom(sym, xc=xc, spin=spin, mesh=spec)
+            print(f"precision {name:<7s} deviation {(res.total_energy - e_ref) * 1e6:+10.4f} µHa, "
+                  f"error estimate {res.error_estimate * 1e6:10.4f} µHa, basis size {res.settings['basis_size']}")
+
+
+if __name__ == "__main__":
+    main(sys.argv[1:])

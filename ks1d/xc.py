@@ -72,6 +72,9 @@ ALIASES: dict[str, str] = {
 
 FAMILIES = ("hf", "lda", "gga", "mgga")
 
+#: Below this many points libxc is called single-threaded.
+SERIAL_POINTS = 20000
+
 
 def _libxc():
     from pyscf.dft import libxc  # imported lazily: pyscf start-up is slow
@@ -250,14 +253,19 @@ def evaluate_xc(func: Functional, rho: np.ndarray, grad: np.ndarray | None = Non
     if nrow == 6:
         packed[:, 5] = tau
     lx = _libxc()
-    if ns == 1:
-        arg = packed[0] if nrow > 1 else packed[0, 0]
-        exc, vxc = lx.eval_xc(func.libxc, arg, spin=0, deriv=1)[:2]
-        rho_tot = rho[0]
-    else:
-        arg = (packed[0], packed[1]) if nrow > 1 else (packed[0, 0], packed[1, 0])
-        exc, vxc = lx.eval_xc(func.libxc, arg, spin=1, deriv=1)[:2]
-        rho_tot = rho[0] + rho[1]
+    from pyscf.lib import with_omp_threads
+
+    # OpenMP start-up costs more than it saves on small point sets (radial meshes, grid
+    # batches), and oversubscribed threads are many times slower on a busy machine
+    with with_omp_threads(1 if npt < SERIAL_POINTS else None):
+        if ns == 1:
+            arg = packed[0] if nrow > 1 else packed[0, 0]
+            exc, vxc = lx.eval_xc(func.libxc, arg, spin=0, deriv=1)[:2]
+            rho_tot = rho[0]
+        else:
+            arg = (packed[0], packed[1]) if nrow > 1 else (packed[0, 0], packed[1, 0])
+            exc, vxc = lx.eval_xc(func.libxc, arg, spin=1, deriv=1)[:2]
+            rho_tot = rho[0] + rho[1]
     vrho = np.asarray(vxc[0]).reshape(npt, ns).T if ns == 2 else np.asarray(vxc[0]).reshape(1, npt)
     vsigma = vtau = None
     if func.needs_gradient:

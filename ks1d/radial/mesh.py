@@ -32,7 +32,7 @@ class MeshSpec:
     (bohr); quad_extra: quadrature points per element beyond p.
     """
 
-    n_elements: int = 24
+    n_elements: int = 16
     order: int = 10
     r_first: float = 0.06
     r_max: float = 40.0

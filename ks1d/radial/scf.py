@@ -46,8 +46,8 @@ from .result import AtomResult, Orbital, RadialData
 #: basis-set limit to well below 1 µHa for Z = 1–92 (see
 #: benchmarks/bench_radial_convergence.py); "high" is for convergence studies.
 PRECISION: dict[str, MeshSpec] = {
-    "low": MeshSpec(n_elements=14, order=8, r_first=0.1, r_max=35.0),
-    "normal": MeshSpec(n_elements=20, order=10, r_first=0.06, r_max=40.0),
+    "low": MeshSpec(n_elements=12, order=8, r_first=0.1, r_max=35.0),
+    "normal": MeshSpec(n_elements=16, order=10, r_first=0.06, r_max=40.0),
     "high": MeshSpec(n_elements=30, order=12, r_first=0.03, r_max=50.0),
 }
 

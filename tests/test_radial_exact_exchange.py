@@ -1,5 +1,4 @@
 """Exact exchange, hybrids and meta-GGAs in the radial solver against outside references."""
-import numpy as np
 import pytest
 
 import ks1d
@@ -29,26 +28,8 @@ def test_hydrogen_hartree_fock_is_exact():
     assert res.components["hartree"] == pytest.approx(5 / 16, abs=1e-8)  # 5/16 for the 1s density (textbook)
 
 
-pyscf = pytest.importorskip("pyscf")
-from pyscf import dft, gto  # noqa: E402
-
-
-def even_tempered(lo, hi, ratio):
-    n = int(np.ceil(np.log(hi / lo) / np.log(ratio))) + 1
-    return lo * ratio ** np.arange(n)
-
-
-def pyscf_rks(symbol, libxc_id, lmax):
-    shells = [[0, [a, 1.0]] for a in even_tempered(0.05, 1e7, 1.6)]
-    if lmax:
-        shells += [[1, [a, 1.0]] for a in even_tempered(0.05, 1e4, 1.6)]
-    mol = gto.M(atom=f"{symbol} 0 0 0", basis={symbol: shells}, verbose=0)
-    mf = dft.RKS(mol)
-    mf.xc = libxc_id
-    mf.grids.atom_grid = (500, 50)
-    mf.grids.prune = None
-    mf.conv_tol = 1e-12
-    return mf.kernel()
+pytest.importorskip("pyscf")
+from pyscf_atoms import pyscf_atom_energy  # noqa: E402
 
 
 @pytest.mark.parametrize("symbol, alias, libxc_id, lmax, tol", [
@@ -59,7 +40,7 @@ def pyscf_rks(symbol, libxc_id, lmax):
 ])
 def test_hybrid_and_meta_gga_limits_lie_just_below_large_gaussian_basis(symbol, alias, libxc_id, lmax, tol):
     # pyscf (run now) with an even-tempered s,p basis approaches the basis-set limit from above
-    e_ref = pyscf_rks(symbol, libxc_id, lmax)
+    e_ref = pyscf_atom_energy(symbol, libxc_id, lmax)
     e = ks1d.solve_atom(symbol, xc=alias, spin="restricted", estimate_error=False).total_energy
     assert e <= e_ref + 2e-8
     assert e_ref - e < tol

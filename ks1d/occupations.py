@@ -290,3 +290,20 @@ def _set_spin(out: dict, two_s: float, text: str, explicit: bool) -> None:
         diff -= 2 * move
     if abs(diff) > _TOL:
         raise SpinError(f"2S = {two_s:g} cannot be reached within the sub-shells of '{text}'")
+
+
+def ground_state_multiplicity(key, charge: int = 0) -> int:
+    """2S+1 of the spin-polarized radial ground state of an atom or atomic ion.
+
+    2S = N↑ − N↓ of :func:`ks1d.occupations.build_configuration` (Hund's
+    first rule per open sub-shell; ions by its ionisation rules), so a
+    Gaussian-basis run of the atom has the same spin as the radial one.
+    """
+    el = element(key)
+    if el.Z - charge == 0:
+        return 1
+    cfg = build_configuration(el.Z, charge, "polarized")
+    two_s = cfg.n_up - cfg.n_down
+    if abs(two_s - round(two_s)) > 1e-8:
+        raise SpinError(f"{el.symbol} (charge {charge:+d}) has a fractional ground-state spin 2S = {two_s:g}")
+    return int(round(abs(two_s))) + 1

@@ -15,6 +15,7 @@ import re
 from dataclasses import dataclass, field
 from typing import Any
 
+from ..occupations import ground_state_multiplicity
 from .. import elements
 from ..errors import ConfigurationError, GeometryError, InputError
 
@@ -147,41 +148,9 @@ def hund_unpaired(config: str) -> int:
 
 
 def atom_multiplicity(symbol: str, charge: int = 0) -> int:
-    """Ground-state 2S+1 of a neutral atom (Hund's rule on the NIST ground configuration).
-
-    Ions are treated by removing electrons from the outermost subshell listed
-    last (cations) or adding to it (anions); this is used only to pick a
-    multiplicity for Gaussian-basis runs of ions.
-    """
-    el = elements.element(symbol)
-    if charge == 0:
-        return hund_unpaired(el.ground_configuration) + 1
-    nelec = el.Z - charge
-    if nelec <= 0:
-        raise ConfigurationError(f"{el.symbol} with charge {charge:+d} has no electrons")
-    shells = expand_configuration(el.ground_configuration)
-    if charge > 0:
-        remove = charge
-        # remove from the highest-n shells first (4s before 3d, as for 3d ions)
-        order = sorted(range(len(shells)), key=lambda i: (shells[i][0], shells[i][1]), reverse=True)
-        occ = [s[2] for s in shells]
-        for i in order:
-            take = min(occ[i], remove)
-            occ[i] -= take
-            remove -= take
-            if remove == 0:
-                break
-        unpaired = sum(min(o, 2 * (2 * s[1] + 1) - o) for o, s in zip(occ, shells))
-    else:
-        n, l, o = shells[-1]
-        cap = 2 * (2 * l + 1)
-        add = -charge
-        unpaired = sum(min(s[2], 2 * (2 * s[1] + 1) - s[2]) for s in shells[:-1])
-        if o + add <= cap:
-            unpaired += min(o + add, cap - o - add)
-        else:  # fills the last shell and starts the next p (or s) shell
-            unpaired += 1 if (o + add - cap) % 2 else 0
-    return unpaired + 1
+    """Ground-state 2S+1 of an atom or atomic ion, as the radial solver assigns it
+    (Hund's rule on the NIST ground configuration, ions by ks1d.occupations' rules)."""
+    return ground_state_multiplicity(symbol, charge)
 
 
 def parse_atom(text: str) -> System:

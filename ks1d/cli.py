@@ -56,6 +56,11 @@ def main(argv: list[str] | None = None) -> int:
     except KeyboardInterrupt:
         print("ks1d: interrupted", file=sys.stderr)
         return 130
+    except BrokenPipeError:  # output piped into e.g. head
+        import os
+
+        os.dup2(os.open(os.devnull, os.O_WRONLY), sys.stdout.fileno())
+        return 0
 
 
 if __name__ == "__main__":

@@ -115,7 +115,7 @@ def test_sigkill_mid_run_loses_and_duplicates_nothing(tmp_path):
     spec_path = tmp_path / "cheap.toml"
     spec_path.write_text(CHEAP)
     store = str(tmp_path / "cheap.sqlite")
-    cmd = [sys.executable, "-m", "ks1d.sweep", "run", str(spec_path), "--store", store, "--workers", "2",
+    cmd = [sys.executable, "-m", "ks1d", "sweep", "run", str(spec_path), "--store", store, "--workers", "2",
            "--no-progress"]
     env = dict(os.environ, PYTHONUNBUFFERED="1")
     proc = subprocess.Popen(cmd, stdout=subprocess.PIPE, stderr=subprocess.PIPE, start_new_session=True, env=env)
@@ -170,7 +170,10 @@ def test_sigkill_mid_run_loses_and_duplicates_nothing(tmp_path):
 
 def test_cli_plan_run_status_report(tmp_path, capsys):
     # the H atom's LSD energy, -0.478671 Ha in NIST SRD 141, shows up as value and reference in the report
-    from ks1d.sweep.__main__ import main
+    from ks1d.cli import main as cli_main
+
+    def main(argv):
+        return cli_main(["sweep", *argv])
 
     spec = tmp_path / "h.toml"
     spec.write_text(_hydrogen_only())

@@ -45,7 +45,7 @@ def atomic_profile(Z: int, xc: str = "lda") -> AtomicProfile:
     """Profile of the neutral spin-restricted atom Z (cached per process)."""
     from .scf import solve_atom
 
-    res = solve_atom(int(Z), xc=xc, spin="restricted", estimate_error=False)
+    res = solve_atom(int(Z), xc=xc, spin="restricted", precision="low", estimate_error=False)
     rad = res.radial
     order = np.argsort(rad.r)
     r = rad.r[order]

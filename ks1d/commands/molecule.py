@@ -1,0 +1,75 @@
+"""``ks1d molecule``: Kohn–Sham ground state of a molecule in a Gaussian basis."""
+from __future__ import annotations
+
+import json
+
+from ..units import HARTREE_TO_EV
+
+
+def register(sub) -> None:
+    p = sub.add_parser("molecule", help="solve a molecule in a Gaussian basis",
+                       description="Kohn-Sham (or Hartree-Fock) SCF of a molecule given as an XYZ file (Å).")
+    p.add_argument("xyz", help="XYZ file (coordinates in ångström)")
+    p.add_argument("--basis", default="def2-svp", help="basis name, or a basis file (default: def2-svp)")
+    p.add_argument("--xc", default="pbe", help="functional alias or libxc identifiers (default: pbe)")
+    p.add_argument("--charge", type=int, default=0, help="net charge (default 0)")
+    p.add_argument("--multiplicity", type=int, default=1, help="spin multiplicity 2S+1 (default 1)")
+    p.add_argument("--grid", default="default", help="grid level: coarse, default, fine, reference")
+    p.add_argument("--guess", default="atoms", help="initial guess: atoms (radial atoms) or core")
+    p.add_argument("--smearing", type=float, default=0.0, metavar="HARTREE",
+                   help="Fermi-Dirac smearing width (default 0: aufbau)")
+    p.add_argument("--max-iterations", type=int, default=100)
+    p.add_argument("--json", action="store_true", help="print one JSON object")
+    p.set_defaults(func=run)
+
+
+def run(args) -> int:
+    from ..gaussian.scf import solve_molecule
+
+    res = solve_molecule(args.xyz, basis=args.basis, xc=args.xc, charge=args.charge,
+                         multiplicity=args.multiplicity, grid=args.grid, guess=args.guess,
+                         smearing=args.smearing, max_iterations=args.max_iterations)
+    if args.json:
+        print(json.dumps(res.to_dict()))
+    else:
+        print(format_molecule(res))
+    return 0
+
+
+def format_molecule(res) -> str:
+    """Readable summary: settings, energy components, orbitals near the gap, analysis."""
+    s = res.settings
+    f = s["xc"]
+    formula = " ".join(res.geometry["symbols"])
+    lines = [
+        f"molecule       {formula}  (charge {res.charge:+d}, multiplicity {res.multiplicity}, "
+        f"{'restricted' if res.restricted else 'unrestricted'})",
+        f"basis          {s['basis']}  ({res.basis_functions} functions)",
+        f"functional     {f['name']}  [{f['libxc']}, {f['kind']}]",
+        f"grid           {s['grid_level']}  ({res.grid_points} points), guess: {s['guess']}",
+        f"SCF            {'converged' if res.converged else 'NOT converged'} in {res.iterations} iterations"
+        f"  ({res.timings['total']:.2f} s)",
+        "",
+        f"{'energy':<24}{'hartree':>20}{'eV':>18}",
+    ]
+    comps = res.components.to_dict()
+    for name, val in [("total", res.total_energy)] + list(comps.items()):
+        lines.append(f"{name.replace('_', ' '):<24}{val:>20.8f}{val * HARTREE_TO_EV:>18.5f}")
+    lines.append("")
+    if res.homo_lumo_gap is not None:
+        lines.append(f"HOMO / LUMO / gap       {res.homo_energy:.6f} / {res.lumo_energy:.6f} / "
+                     f"{res.homo_lumo_gap:.6f} Ha  ({res.homo_lumo_gap * HARTREE_TO_EV:.3f} eV)")
+    if not res.restricted:
+        lines.append(f"<S^2>                   {res.spin_square:.6f}")
+    d = res.dipole
+    lines.append(f"dipole / e bohr         {d[0]:+.6f} {d[1]:+.6f} {d[2]:+.6f}   "
+                 f"|mu| = {res.dipole_debye:.4f} D")
+    lines += ["", f"{'atom':<8}{'Mulliken charge':>16}"]
+    for i, (sym, q) in enumerate(zip(res.geometry["symbols"], res.mulliken_charges), 1):
+        lines.append(f"{sym + str(i):<8}{q:>16.5f}")
+    lines += ["", f"{'orbital':<9}{'spin':<12}{'occupation':>11}{'energy / Ha':>16}{'energy / eV':>14}"]
+    for o in res.orbitals:
+        if o.occupation > 1e-8 or (res.lumo_energy is not None and o.energy <= res.lumo_energy + 0.5):
+            lines.append(f"{o.index + 1:<9}{o.spin:<12}{o.occupation:>11.4g}{o.energy:>16.8f}"
+                         f"{o.energy * HARTREE_TO_EV:>14.5f}")
+    return "\n".join(lines)

@@ -16,22 +16,6 @@ from ks1d.sweep.properties import run_property
 from ks1d.sweep.systems import System, parse_atom
 
 
-@pytest.fixture(autouse=True)
-def _one_thread():
-    # one BLAS/OpenMP thread, as in sweep workers: on a busy 2-core machine oversubscribed threads crawl
-    from pyscf import lib
-
-    try:
-        from threadpoolctl import threadpool_limits
-    except ImportError:  # only pyscf's own threads are limited then
-        from contextlib import nullcontext as threadpool_limits
-    before = lib.num_threads()
-    lib.num_threads(1)
-    with threadpool_limits(1):
-        yield
-    lib.num_threads(before)
-
-
 def test_curve_fit_recovers_a_morse_minimum_and_curvature():
     # Morse potential V = D (1 - exp(-a (R - Re)))^2 has its minimum at Re and V''(Re) = 2 D a^2 (analytic)
     D, a, re = 0.17, 1.03, 1.40

@@ -22,22 +22,6 @@ def _run(argv, capsys):
     return code, capsys.readouterr().out
 
 
-@pytest.fixture(autouse=True)
-def _one_thread():
-    # one BLAS/OpenMP thread, as in sweep workers: on a busy 2-core machine oversubscribed threads crawl
-    from pyscf import lib
-
-    try:
-        from threadpoolctl import threadpool_limits
-    except ImportError:  # only pyscf's own threads are limited then
-        from contextlib import nullcontext as threadpool_limits
-    before = lib.num_threads()
-    lib.num_threads(1)
-    with threadpool_limits(1):
-        yield
-    lib.num_threads(before)
-
-
 def test_json_rows_match_the_nist_lsd_table(capsys):
     # NIST SRD 141 (Kotochigova et al., PRA 55, 191 (1997)) LSD total energies: H -0.478671, He -2.834836 Ha
     code, out = _run(["H", "He", "--xc", "lda", "--precision", "low", "--json"], capsys)

@@ -3,7 +3,7 @@
 A basis is given as
 * a name from the basis library that pyscf ships (``"def2-svp"``, ``"cc-pvtz"``),
 * a mapping element → name (or → file path), with an optional ``"default"`` key,
-* a path to a basis file in a format pyscf parses (NWChem-style text).
+* a path to a basis file in a format pyscf parses (the plain-text basis format that pyscf reads).
 
 :func:`build_basis` checks that every element gets functions and returns a
 :class:`BasisSet`: the integral engine's molecule object plus the shell → atom

@@ -33,7 +33,8 @@ import scipy.linalg as sl
 
 from .. import __version__
 from ..elements import element as _element
-from ..errors import ConvergenceError, IterationRecord, SettingsError, UnsupportedFunctional
+from ..errors import (ConfigurationError, ConvergenceError, IterationRecord, SettingsError, SpinError,
+                      UnsupportedFunctional)
 from ..mixing import PulayMixer
 from ..occupations import Configuration, build_configuration
 from ..xc import Functional, evaluate_xc, resolve_functional
@@ -439,14 +440,10 @@ def solve_atom(element, xc: str = "lda", charge: float = 0, spin="polarized", co
     el = _element(element)
     func = resolve_functional(xc)
     if spin not in ("polarized", "restricted") and not isinstance(spin, (int, np.integer)):
-        from ..errors import SpinError
-
         raise SpinError(f"spin must be 'polarized', 'restricted' or an integer 2S, got {spin!r}")
     try:
         charge = float(charge)
     except (TypeError, ValueError):
-        from ..errors import ConfigurationError
-
         raise ConfigurationError(f"charge must be a number, got {charge!r}") from None
     cfg = build_configuration(el.Z, charge, spin, config)
     if mesh is None:

@@ -40,10 +40,11 @@ def time_cli(repeat: int) -> list[float]:
 
 def time_pairs() -> None:
     import ks1d
-    from ks1d.validate.checks import WATER, SingleThreaded
+    from ks1d.threads import single_threaded
+    from ks1d.validate.checks import WATER
     from ks1d.validate.pyscf_reference import even_tempered_atom_energy, molecule_energy
 
-    with SingleThreaded():
+    with single_threaded():
         ks1d.solve_atom("He", xc="pbe", spin="restricted", estimate_error=False)  # warm-up (imports, libxc)
         t0 = time.perf_counter()
         ks1d.solve_atom("He", xc="pbe", spin="restricted", estimate_error=False)

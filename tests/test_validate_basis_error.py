@@ -23,15 +23,6 @@ H 0.000000  0.757200 -0.469200
 H 0.000000 -0.757200 -0.469200
 """
 
-@pytest.fixture(autouse=True, scope="module")
-def _one_thread():
-    # small matrices: one BLAS/OpenMP thread is much faster (see ks1d.validate.checks.SingleThreaded)
-    from ks1d.validate.checks import SingleThreaded
-
-    with SingleThreaded():
-        yield
-
-
 
 @pytest.fixture(autouse=True)
 def _cli_knows_basis_error(monkeypatch):

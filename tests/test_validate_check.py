@@ -18,15 +18,6 @@ from ks1d.validate.checks import CheckResult, _compare
 
 pytest.importorskip("pyscf")
 
-@pytest.fixture(autouse=True, scope="module")
-def _one_thread():
-    # small matrices: one BLAS/OpenMP thread is much faster (see ks1d.validate.checks.SingleThreaded)
-    from ks1d.validate.checks import SingleThreaded
-
-    with SingleThreaded():
-        yield
-
-
 
 @pytest.fixture(autouse=True)
 def _cli_knows_check(monkeypatch):

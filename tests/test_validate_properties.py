@@ -38,15 +38,6 @@ from ks1d.validate.properties import (
 
 pyscf = pytest.importorskip("pyscf")
 
-@pytest.fixture(autouse=True, scope="module")
-def _one_thread():
-    # small matrices: one BLAS/OpenMP thread is much faster (see ks1d.validate.checks.SingleThreaded)
-    from ks1d.validate.checks import SingleThreaded
-
-    with SingleThreaded():
-        yield
-
-
 
 def _pyscf_uks_energy(symbol, charge, spin, lmax):
     from pyscf import dft, gto

@@ -45,9 +45,9 @@ def format_report(rep) -> str:
 
 def run(args) -> int:
     from ..validate.basis_error import basis_error_report
-    from ..validate.checks import SingleThreaded
+    from ..threads import single_threaded
 
-    with SingleThreaded():  # small matrices: one BLAS/OpenMP thread is faster (see ks1d.validate.checks)
+    with single_threaded():  # small matrices: one BLAS/OpenMP thread is faster (see ks1d.threads)
         rep = basis_error_report(args.elements, basis=args.basis, xc=args.xc, xyz=args.xyz,
                                  precision=args.precision, grid=args.grid)
     print(json.dumps(rep.to_dict()) if args.json else format_report(rep))

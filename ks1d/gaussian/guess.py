@@ -33,11 +33,11 @@ def radial_atoms_available() -> bool:
 def screened_atomic_potential(geometry, points: np.ndarray) -> np.ndarray:
     """Σ_A v_scr,A(|r − R_A|) on ``points`` from ks1d's radial atoms."""
     from ..radial.profile import atomic_profile
-    from .parallel import single_threaded_blas
+    from ..threads import single_threaded
 
     v = np.zeros(len(points))
     for Z, R in zip(geometry.numbers, geometry.coordinates):
-        with single_threaded_blas():  # the radial solve is many small dense products
+        with single_threaded(openmp=False):  # the radial solve is many small dense products
             profile = atomic_profile(int(Z))
         r = np.linalg.norm(points - R, axis=1)
         v += np.asarray(profile.screened_potential(r), dtype=float)

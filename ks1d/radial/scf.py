@@ -24,7 +24,6 @@ density residual.
 """
 from __future__ import annotations
 
-import functools
 import time
 from dataclasses import dataclass, replace
 
@@ -36,6 +35,7 @@ from ..elements import element as _element
 from ..errors import (ConfigurationError, ConvergenceError, IterationRecord, SettingsError, SpinError,
                       UnsupportedFunctional)
 from ..mixing import PulayMixer
+from ..threads import one_blas_thread
 from ..occupations import Configuration, build_configuration
 from ..xc import Functional, evaluate_xc, resolve_functional
 from .exchange import ExchangeBuilder
@@ -402,21 +402,7 @@ def _anion_spec(spec: MeshSpec, charge: float) -> MeshSpec:
     return replace(spec, r_max=min(spec.r_max, ANION_R_MAX))
 
 
-def _one_blas_thread(fn):
-    """Run ``fn`` with one BLAS thread: the radial matrices are small (≈ 160 × 160), so BLAS
-    threads only add overhead and, on a busy machine, oversubscription."""
-
-    @functools.wraps(fn)
-    def wrapper(*args, **kwargs):
-        from threadpoolctl import threadpool_limits
-
-        with threadpool_limits(1, user_api="blas"):
-            return fn(*args, **kwargs)
-
-    return wrapper
-
-
-@_one_blas_thread
+@one_blas_thread
 def solve_atom(element, xc: str = "lda", charge: float = 0, spin="polarized", config: str | None = None, *,
                precision: str = "normal", mesh: MeshSpec | None = None, scf: SCFSettings | None = None,
                estimate_error: bool = True, raise_on_failure: bool = True,

@@ -49,20 +49,11 @@ class InlineExecutor:
     workers = None
 
     def run(self, jobs: Sequence[Job], on_result: OnResult) -> None:
-        from pyscf import lib
+        from ..threads import single_threaded
 
-        before = lib.num_threads()
-        lib.num_threads(1)  # as in the pool and on Dask: one OpenMP thread, the same numbers
-        try:
-            from threadpoolctl import threadpool_limits
-        except ImportError:  # BLAS keeps its threads: results may differ in the last bits
-            from contextlib import nullcontext as threadpool_limits  # type: ignore[assignment]
-        try:
-            with threadpool_limits(1):
-                for job in jobs:
-                    on_result(job, run_job(job.to_dict()))
-        finally:
-            lib.num_threads(before)
+        with single_threaded():  # as in the pool and on Dask: one thread, the same numbers
+            for job in jobs:
+                on_result(job, run_job(job.to_dict()))
 
 
 class PoolExecutor:

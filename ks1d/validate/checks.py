@@ -41,10 +41,11 @@ from __future__ import annotations
 
 import json
 import time
+from contextlib import nullcontext
 from dataclasses import asdict, dataclass, field
 from typing import Callable
 
-from .. import __version__, units
+from .. import __version__, threads, units
 from ..elements import atomic_number
 from ..errors import InputError
 from ..reference import reference_table, reference_value
@@ -354,44 +355,6 @@ GROUPS: dict[str, Callable] = {
 }
 
 
-class SingleThreaded:
-    """Run the suite with one BLAS/OpenMP thread.
-
-    The radial solver works with matrices of a few hundred rows and libxc on
-    a few thousand points; with several threads these small kernels spend
-    more time synchronising than computing (measured 10–20× slower on a
-    loaded 2-core machine).  Uses threadpoolctl when installed and pyscf's
-    own OpenMP setting.
-    """
-
-    def __enter__(self):
-        self._ctx = None
-        self._omp = None
-        try:
-            from threadpoolctl import threadpool_limits
-
-            self._ctx = threadpool_limits(1)
-        except ImportError:
-            pass
-        try:
-            from pyscf import lib
-
-            self._omp = lib.num_threads()
-            lib.num_threads(1)
-        except ImportError:
-            pass
-        return self
-
-    def __exit__(self, *exc):
-        if self._omp is not None:
-            from pyscf import lib
-
-            lib.num_threads(self._omp)
-        if self._ctx is not None:
-            self._ctx.unregister()
-        return False
-
-
 def run_suite(level: str = "quick", xc: str = "pbe", groups: tuple[str, ...] | None = None,
               single_threaded: bool = True, progress: Callable[[CheckResult], None] | None = None) -> SuiteResult:
     """Run the validation suite; bad input raises an InputError before any calculation."""
@@ -413,7 +376,7 @@ def run_suite(level: str = "quick", xc: str = "pbe", groups: tuple[str, ...] | N
                                         "IPs/EAs) does not support it")
     t0 = time.perf_counter()
     checks: list[CheckResult] = []
-    with (SingleThreaded() if single_threaded else _Null()):
+    with (threads.single_threaded() if single_threaded else nullcontext()):
         for g in chosen:
             for c in GROUPS[g](level, xc):
                 checks.append(c)
@@ -422,10 +385,3 @@ def run_suite(level: str = "quick", xc: str = "pbe", groups: tuple[str, ...] | N
     return SuiteResult(level, xc, tuple(checks), time.perf_counter() - t0,
                        settings={"groups": list(chosen), "single_threaded": single_threaded})
 
-
-class _Null:
-    def __enter__(self):
-        return self
-
-    def __exit__(self, *exc):
-        return False

@@ -60,7 +60,29 @@ def _load_element_basis(spec, symbol: str):
             raise BasisError(f"could not read basis '{spec}' for element {symbol}: {exc}") from None
     if not shells:
         raise BasisError(f"basis '{spec}' has no functions for element {symbol}")
+    if not is_file and _uses_core_potential(text_or_name, symbol):
+        raise BasisError(
+            f"basis '{spec}' pairs element {symbol} with an effective core potential; ks1d is all-electron, "
+            "so use an all-electron basis for it (e.g. 'ano-rcc' or 'cc-pvtz-dk' where the integral library has it)")
     return shells
+
+
+def _uses_core_potential(name: str, symbol: str) -> bool:
+    """True if the named basis comes with an effective core potential for ``symbol`` (e.g. def2 for Z > 36)."""
+    from pyscf import gto
+
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        try:
+            return bool(gto.basis.load_ecp(name, symbol))
+        except Exception:  # noqa: BLE001 - no ECP data for this name
+            return False
+
+
+def check_basis(basis, symbols) -> None:
+    """Raise :class:`BasisError` unless ``basis`` has all-electron functions for every element in ``symbols``."""
+    for sym, spec in _per_element(basis, tuple(symbols)).items():
+        _load_element_basis(spec, sym)
 
 
 def _per_element(basis, symbols: tuple[str, ...]) -> dict:

@@ -21,6 +21,15 @@ and τ) is mixed with the shared Anderson/Pulay mixer.  The energy
 
 is evaluated from the output orbitals, whose error is second order in the
 density residual.
+
+Exact exchange of open sub-shells is the average over the determinants of
+the configuration (:mod:`ks1d.radial.exchange`).  Each open sub-shell a then
+has its own Fock operator F + Δ_a; the Δ matrices join the K matrices in the
+mixed state.  A channel whose only occupied sub-shell is open uses F + Δ_a for
+the whole channel.  A channel holding closed sub-shells beside the open one
+(2p under 3p in Al–Ar, 1s/2s under a restricted 3s¹) is solved exactly
+variationally by :meth:`AtomicProblem._coupled_channel`, which also satisfies
+the off-diagonal conditions f_a⟨c|F + Δ_a|a⟩ = f_c⟨c|F|a⟩.
 """
 from __future__ import annotations
 
@@ -36,9 +45,9 @@ from ..errors import (ConfigurationError, ConvergenceError, IterationRecord, Set
                       UnsupportedFunctional)
 from ..mixing import PulayMixer
 from ..threads import one_blas_thread
-from ..occupations import Configuration, build_configuration
+from ..occupations import L_LETTERS, Configuration, build_configuration
 from ..xc import Functional, evaluate_xc, resolve_functional
-from .exchange import ExchangeBuilder
+from .exchange import ExchangeBuilder, average_configuration_weights, wigner3j_zero
 from .density import FOUR_PI, shell_density, shell_density_derivative, shell_tau
 from .mesh import MeshSpec, RadialMesh
 from .poisson import PoissonSolver, hartree_energy, total_charge
@@ -88,6 +97,12 @@ def thomas_fermi_potential(Z: float, r: np.ndarray, charge: float = 0.0) -> np.n
     return -z_eff / r
 
 
+#: Shift (Ha) that moves excluded directions above every bound level in AtomicProblem._lowest.
+_DEFLATION_SHIFT = 1.0e4
+#: Iteration limit of the coupled open-shell channel solver.
+_INNER_MAX = 200
+
+
 class _Channel:
     """One (spin, l) block: the sub-shells it holds and their occupations."""
 
@@ -101,7 +116,7 @@ class AtomicProblem:
     """The discretised atom: mesh, fixed matrices, channels and functional."""
 
     def __init__(self, Z: int, config: Configuration, func: Functional, spec: MeshSpec,
-                 interacting: bool = True):
+                 interacting: bool = True, open_shell_exchange: str = "average"):
         if func.is_range_separated:
             raise UnsupportedFunctional(
                 f"'{func.name}' is a {func.kind}; the radial solver does not support range-separated "
@@ -129,51 +144,86 @@ class AtomicProblem:
         self.exchange = ExchangeBuilder(m) if self.exx else None
         self._dens_shape = (self.ncomp, self.ns) + m.r.shape
         self._dens_size = int(np.prod(self._dens_shape))
+        # open sub-shells: the average over determinants changes their self-interaction
+        # weights, which gives each its own Fock operator F + Δ (see ks1d.radial.exchange)
+        self.open_shells: dict[tuple[int, int, int], dict] = {}
+        self.open_shell_exchange = open_shell_exchange
+        if self.exchange is not None and open_shell_exchange == "average":
+            for ch in self.channels:
+                for n, f in ch.shells:
+                    f_sigma = f if self.ns == 2 else 0.5 * f
+                    if f_sigma <= 1e-14:
+                        continue
+                    g = 2 * ch.l + 1
+                    if self.ns == 2:
+                        weights = average_configuration_weights(ch.l, f_sigma, f_sigma, g, 1)
+                    else:
+                        weights = average_configuration_weights(ch.l, f_sigma, f, 2 * g, 2)
+                    if max(abs(d) for _, _, d in weights.values()) > 1e-13:
+                        self.open_shells[(ch.spin, ch.l, n)] = {"f": f_sigma, "weights": weights}
+        self._previous: dict = {}  # last orbitals per channel: warm start of the coupled open-shell solver
+        self.inner_unconverged: set = set()  # channels whose coupled solve hit _INNER_MAX in the last step
 
     # ---------------------------------------------------------------- SCF state
     # The mixed SCF state is one flat vector: the density components (ρ, ρ′, τ)
     # per spin at the quadrature points, followed by the exchange matrices of
     # the (spin, l) channels for hybrids (Fock-matrix mixing of the non-local part).
-    def pack(self, dens: np.ndarray, K: dict | None) -> np.ndarray:
+    def pack(self, dens: np.ndarray, K: dict | None, D: dict | None = None) -> np.ndarray:
         parts = [dens.ravel()]
         if self.exchange is not None:
             parts += [K[(ch.spin, ch.l)].ravel() for ch in self.channels]
+            parts += [D[key].ravel() for key in self.open_shells]
         return np.concatenate(parts)
 
-    def unpack(self, x: np.ndarray) -> tuple[np.ndarray, dict | None]:
+    def unpack(self, x: np.ndarray) -> tuple[np.ndarray, dict | None, dict | None]:
+        """(density components, K per (spin, l) channel, Δ per open sub-shell (spin, l, n))."""
         dens = x[:self._dens_size].reshape(self._dens_shape)
         if self.exchange is None:
-            return dens, None
+            return dens, None, None
         n2 = self.mesh.size ** 2
-        K = {}
-        for i, ch in enumerate(self.channels):
-            a = self._dens_size + i * n2
+        K, D = {}, {}
+        a = self._dens_size
+        for ch in self.channels:
             K[(ch.spin, ch.l)] = x[a:a + n2].reshape(self.mesh.size, self.mesh.size)
-        return dens, K
+            a += n2
+        for key in self.open_shells:
+            D[key] = x[a:a + n2].reshape(self.mesh.size, self.mesh.size)
+            a += n2
+        return dens, K, D
 
-    def state(self, orbitals: dict) -> np.ndarray:
-        """Packed SCF state of a set of orbitals."""
-        return self.pack(self.density_state(orbitals), self.exchange_matrices(orbitals))
+    def state(self, orbitals: dict, with_integrals: bool = False):
+        """Packed SCF state of a set of orbitals (and the open shells' R^k(aa; aa) if asked)."""
+        K, D, R = self.exchange_matrices(orbitals)
+        x = self.pack(self.density_state(orbitals), K, D)
+        return (x, R) if with_integrals else x
 
-    def exchange_matrices(self, orbitals: dict) -> dict | None:
-        """K^(l)_σ per channel from the occupied orbitals of the same spin (None without exact exchange)."""
+    def exchange_matrices(self, orbitals: dict):
+        """K^(l)_σ per channel from the occupied orbitals of the same spin, the open-shell
+        corrections Δ and the integrals R^k(aa; aa) of the open shells ((None,)*3 without exact exchange)."""
         if self.exchange is None:
-            return None
+            return None, None, None
         m = self.mesh
         per_spin = {s: [] for s in range(self.ns)}
+        own = {s: {} for s in range(self.ns)}
         for ch in self.channels:
             C, _ = orbitals[(ch.spin, ch.l)]
             u, _ = m.values(C)
             for n, f in ch.shells:
                 f_sigma = f if self.ns == 2 else 0.5 * f
+                key = (ch.spin, ch.l, n)
+                if key in self.open_shells:
+                    d = {k: w[2] for k, w in self.open_shells[key]["weights"].items()}
+                    own[ch.spin][len(per_spin[ch.spin])] = (C[:, n - ch.l - 1], d, key)
                 per_spin[ch.spin].append((ch.l, u[n - ch.l - 1], f_sigma))
-        K = {}
+        K, D, R = {}, {}, {}
         for s in range(self.ns):
             ls = [ch.l for ch in self.channels if ch.spin == s]
-            Ks = self.exchange.matrices(per_spin[s], ls)
+            Ks, Ds, Rs = self.exchange.matrices(per_spin[s], ls, {i: v[:2] for i, v in own[s].items()})
             for l in ls:
                 K[(s, l)] = Ks[l]
-        return K
+            for i, v in own[s].items():
+                D[v[2]], R[v[2]] = Ds[i], Rs[i]
+        return K, D, R
 
     # ---------------------------------------------------------------- densities
     def density_state(self, orbitals: dict) -> np.ndarray:
@@ -261,24 +311,131 @@ class AtomicProblem:
             H[(ch.spin, ch.l)] = h
         return H
 
-    def diagonalise(self, H: dict) -> dict:
-        """Lowest eigenpairs per channel; energies as Rayleigh quotients (exact for the vectors)."""
+    def _lowest(self, h: np.ndarray, count: int, exclude: np.ndarray | None = None) -> np.ndarray:
+        """The lowest ``count`` eigenvectors of h c = ε S c in the S-orthogonal complement of the
+        (S-orthonormal) columns of ``exclude``.
+
+        With the projector P = 1 − X XᵀS the problem is (Pᵀ h P + σ S X XᵀS) c = ε S c: the excluded
+        directions get the eigenvalue σ = 10⁴ Ha, far above every bound level.
+        """
+        if exclude is not None and exclude.shape[1]:
+            X = exclude
+            SX, hX = self.S @ X, h @ X
+            h = (h - SX @ hX.T - hX @ SX.T + SX @ (X.T @ hX + _DEFLATION_SHIFT * np.eye(X.shape[1])) @ SX.T)
+            h = 0.5 * (h + h.T)
+        _, C = sl.eigh(h, self.S, subset_by_index=[0, count - 1], driver="gvx", check_finite=False)
+        return C
+
+    def diagonalise(self, H: dict, D: dict | None = None) -> dict:
+        """Orbitals per channel; energies as Rayleigh quotients of each orbital's own operator.
+
+        Without open sub-shells (or when an open sub-shell is the only occupied one of its
+        channel) these are the lowest eigenvectors of the channel's operator; a channel that
+        holds closed sub-shells under an open one is solved by :meth:`_coupled_channel`.
+        """
         out = {}
+        self.inner_unconverged = set()
         for ch in self.channels:
-            h = H[(ch.spin, ch.l)]
-            _, C = sl.eigh(h, self.S, subset_by_index=[0, ch.count - 1], driver="gvx", check_finite=False)
-            HC = h @ C
-            eps = np.einsum("ik,ik->k", C, HC) / np.einsum("ik,ik->k", C, self.S @ C)
+            key = (ch.spin, ch.l)
+            h = H[key]
+            opens = [] if D is None else [(n - ch.l - 1, self.open_shells[(ch.spin, ch.l, n)]["f"],
+                                           h + self.exx * D[(ch.spin, ch.l, n)])
+                                          for n, _ in ch.shells if (ch.spin, ch.l, n) in self.open_shells]
+            others = [n for n, f in ch.shells if f > 1e-14 and (ch.spin, ch.l, n) not in self.open_shells]
+            if not opens:
+                C = self._lowest(h, ch.count)
+                ops = [h] * ch.count
+            elif len(opens) == 1 and not others:
+                C = self._lowest(opens[0][2], ch.count)
+                ops = [opens[0][2]] * ch.count
+            else:
+                C, ops = self._coupled_channel(ch, h, opens)
+            eps = np.array([C[:, i] @ ops[i] @ C[:, i] / (C[:, i] @ self.S @ C[:, i]) for i in range(ch.count)])
             u_first = C[0]  # first interior node: fix the sign so u > 0 near the nucleus
             C = C * np.where(u_first < 0, -1.0, 1.0)
-            out[(ch.spin, ch.l)] = (C, eps)
+            out[key] = (C, eps)
         return out
 
+    def _coupled_channel(self, ch: "_Channel", h: np.ndarray, opens: list) -> tuple[np.ndarray, list]:
+        """Orbitals of a channel whose sub-shells have different Fock operators (F_c = F, F_a = F + Δ_a).
+
+        They make Q = Σ_i f_i ⟨i|F_i|i⟩ stationary over orthonormal sets (for operators fixed by
+        the input state this is the energy's stationarity: F_i u_i ∈ span(occupied) and the
+        rotation conditions f_a⟨a|F_a|c⟩ = f_c⟨a|F_c|c⟩).  Block-coordinate iteration: the
+        sub-shells with F from F in the S-orthogonal complement of the open ones, each open one
+        from its F_a in the complement of the other occupied ones, then an exact 2×2 (Jacobi)
+        rotation of every pair a, c of occupied orbitals with different operators,
+
+            Q(θ) = Q₀ + α cos 2θ + β sin 2θ,  α = ½[f_a(A_aa − A_cc) + f_c(B_cc − B_aa)],
+            β = f_a A_ac − f_c B_ac  (A = F_a, B = F_c),  stationary at tan 2θ = β/α,
+
+        taking the stationary point nearest θ = 0 (for the ground configuration, f_c > f_a with c
+        below a, α < 0 and that is the minimum; for a hole below a closed shell it is the
+        saddle that keeps the hole), repeated until the orbitals stop changing
+        (max |ΔC| < 1e-11 max |C|).  Unoccupied columns below an open orbital (excited
+        configurations) are not excluded from its space.
+        """
+        key = (ch.spin, ch.l)
+        count = ch.count
+        occ = np.zeros(count)
+        for n, f in ch.shells:
+            occ[n - ch.l - 1] = f if self.ns == 2 else 0.5 * f
+        ops = [h] * count
+        open_cols = []
+        for col, _, fa in opens:
+            ops[col] = fa
+            open_cols.append(col)
+        closed_cols = [i for i in range(count) if i not in open_cols]
+        prev = self._previous.get(key)
+        C = prev.copy() if prev is not None and prev.shape == (h.shape[0], count) else self._lowest(h, count)
+        converged = False
+        for it in range(1, _INNER_MAX + 1):
+            C_old = C.copy()
+            if closed_cols:
+                C[:, closed_cols] = self._lowest(h, len(closed_cols), C[:, open_cols])
+            for a in open_cols:
+                # empty columns below a (excited configurations) stay in its space: a is the
+                # (k+1)-th level of F_a orthogonal to the other occupied orbitals
+                rest = [i for i in range(count) if i != a and occ[i] > 0.0]
+                k = sum(1 for i in range(a) if occ[i] <= 0.0)
+                C[:, a] = self._lowest(ops[a], k + 1, C[:, rest])[:, k]
+            for a in open_cols:
+                for c in range(count):
+                    if c == a or occ[c] <= 0.0 or (c in open_cols and c < a):
+                        continue
+                    x, y = C[:, a].copy(), C[:, c].copy()
+                    A, B = ops[a], ops[c]
+                    Ax, Ay, Bx, By = A @ x, A @ y, B @ x, B @ y
+                    alpha = 0.5 * (occ[a] * (x @ Ax - y @ Ay) + occ[c] * (y @ By - x @ Bx))
+                    beta = occ[a] * (x @ Ay) - occ[c] * (x @ By)
+                    # the stationary point nearest θ = 0 keeps the orbitals' identity: the minimum
+                    # along the rotation for the usual α < 0, a maximum for a hole below a closed shell
+                    theta = 0.5 * np.arctan(beta / alpha) if alpha != 0.0 else 0.0
+                    cs, sn = np.cos(theta), np.sin(theta)
+                    C[:, a], C[:, c] = cs * x + sn * y, cs * y - sn * x
+            # align signs with the previous sweep before measuring the change
+            sgn = np.sign(np.einsum("ik,ik->k", C, self.S @ C_old))
+            C = C * np.where(sgn == 0, 1.0, sgn)
+            if np.max(np.abs(C - C_old)) < 1e-11 * np.max(np.abs(C)):
+                converged = True
+                break
+        self.inner_iterations = it
+        if not converged:
+            self.inner_unconverged.add(key)
+        self._previous[key] = C.copy()
+        return C, ops
+
     # ---------------------------------------------------------------- energies
-    def energy(self, orbitals: dict, x: np.ndarray, K: dict | None = None) -> dict:
-        """Energy components of the output orbitals, their density state x and exchange matrices K."""
+    def energy(self, orbitals: dict, x: np.ndarray, K: dict | None = None, R: dict | None = None) -> dict:
+        """Energy components of the output orbitals, their density state x, exchange matrices K
+        and the open shells' integrals R^k(aa; aa).
+
+        exact_exchange = a Σ_σ [−½ Σ_ab Σ_k w^k_ab R^k(ab; ba)] (a: exact-exchange fraction);
+        the open shells' Coulomb energy beyond J[ρ_spherical], a Σ_σ ½ Σ_k j^k F^k(aa), is part of
+        "hartree" (see ks1d.radial.exchange.average_configuration_weights).
+        """
         m = self.mesh
-        kin = exx = 0.0
+        kin = exx = e_h_open = 0.0
         for ch in self.channels:
             C, _ = orbitals[(ch.spin, ch.l)]
             Tl = self.T + 0.5 * ch.l * (ch.l + 1) * self.C
@@ -287,13 +444,21 @@ class AtomicProblem:
                 kin += f * c @ Tl @ c
                 if K is not None:
                     exx += 0.5 * self.exx * f * c @ K[(ch.spin, ch.l)] @ c
+        if K is not None:
+            spins = 1 if self.ns == 2 else 2  # a restricted channel stands for both spins
+            for key, info in self.open_shells.items():
+                l, f = key[1], info["f"]
+                for k, (w, j, _) in info["weights"].items():
+                    t = wigner3j_zero(l, k, l) ** 2
+                    exx -= 0.5 * self.exx * spins * (w - f * f * t) * R[key][k]
+                    e_h_open += 0.5 * self.exx * spins * j * R[key][k]
         rho = x[0].sum(axis=0)
         e_ne = -self.Z * m.integrate(FOUR_PI * m.r * rho)
         if self.interacting:
             v_h = self.poisson.hartree_potential(rho)
             xcv = self._xc(x)
             e_xc = float(np.sum(xcv.e * (FOUR_PI * m.r**2 * m.w).ravel()))
-            e_h = hartree_energy(m, rho, v_h)
+            e_h = hartree_energy(m, rho, v_h) + e_h_open
         else:
             v_h, e_xc, e_h = np.zeros_like(rho), 0.0, 0.0
             xcv = evaluate_xc(resolve_functional("hf"), x[0].reshape(self.ns, -1))
@@ -304,10 +469,10 @@ class AtomicProblem:
     def residual_norm(self, dx: np.ndarray) -> float:
         """∫ |Δρ| d³r summed over spins, plus max |ΔK_ij| for exact exchange."""
         m = self.mesh
-        dens, K = self.unpack(dx)
+        dens, K, D = self.unpack(dx)
         res = float(np.sum(np.abs(dens[0]) * (FOUR_PI * m.r**2 * m.w)[None]))
         if K is not None:
-            res += self.exx * max(float(np.max(np.abs(k))) for k in K.values())
+            res += self.exx * max(float(np.max(np.abs(k))) for k in list(K.values()) + list(D.values()))
         return res
 
     def initial_state(self, charge: float) -> np.ndarray:
@@ -364,11 +529,11 @@ def run_scf(problem: AtomicProblem, settings: SCFSettings, charge: float, start:
     history: list[IterationRecord] = []
     e_prev = np.inf
     for it in range(1, settings.max_iterations + 1):
-        dens_in, K_in = problem.unpack(x_in)
-        orbitals = problem.diagonalise(problem.hamiltonians(problem.potentials(dens_in), K_in))
-        x_out = problem.state(orbitals)
-        dens_out, K_out = problem.unpack(x_out)
-        en = problem.energy(orbitals, dens_out, K_out)
+        dens_in, K_in, D_in = problem.unpack(x_in)
+        orbitals = problem.diagonalise(problem.hamiltonians(problem.potentials(dens_in), K_in), D_in)
+        x_out, R_out = problem.state(orbitals, with_integrals=True)
+        dens_out, K_out, _ = problem.unpack(x_out)
+        en = problem.energy(orbitals, dens_out, K_out, R_out)
         dx = x_out - x_in
         res = problem.residual_norm(dx)
         de = en["total"] - e_prev
@@ -406,7 +571,7 @@ def _anion_spec(spec: MeshSpec, charge: float) -> MeshSpec:
 def solve_atom(element, xc: str = "lda", charge: float = 0, spin="polarized", config: str | None = None, *,
                precision: str = "normal", mesh: MeshSpec | None = None, scf: SCFSettings | None = None,
                estimate_error: bool = True, raise_on_failure: bool = True,
-               electron_interaction: bool = True) -> AtomResult:
+               electron_interaction: bool = True, open_shell_exchange: str = "average") -> AtomResult:
     """Solve the Kohn–Sham equations of a spherical atom to the basis-set limit.
 
     element: symbol, name or Z (1–92); xc: alias or libxc identifiers
@@ -418,6 +583,11 @@ def solve_atom(element, xc: str = "lda", charge: float = 0, spin="polarized", co
     mesh and the energy difference is reported as ``error_estimate``.
     ``electron_interaction=False`` switches off Hartree and exchange-
     correlation terms (independent electrons in −Z/r: a hydrogenic check).
+    ``open_shell_exchange`` chooses the exact exchange of open sub-shells:
+    "average" (default; the average over the configuration's determinants,
+    see :mod:`ks1d.radial.exchange`) or "ensemble" (the fractional-occupation
+    density-matrix form, which is what a Gaussian calculation with smeared,
+    equal sub-shell occupations computes; used to compare with one).
 
     Raises InputError subclasses for bad input and ConvergenceError (with the
     iteration history) if the SCF does not converge.
@@ -436,8 +606,10 @@ def solve_atom(element, xc: str = "lda", charge: float = 0, spin="polarized", co
         if precision not in PRECISION:
             raise SettingsError(f"precision must be one of {', '.join(PRECISION)}, got {precision!r}")
         mesh = _anion_spec(PRECISION[precision], charge)
+    if open_shell_exchange not in ("average", "ensemble"):
+        raise SettingsError(f"open_shell_exchange must be 'average' or 'ensemble', got {open_shell_exchange!r}")
     settings = scf or SCFSettings()
-    problem = AtomicProblem(el.Z, cfg, func, mesh, electron_interaction)
+    problem = AtomicProblem(el.Z, cfg, func, mesh, electron_interaction, open_shell_exchange)
     orbitals, en, x, history, converged = run_scf(problem, settings, charge)
     if not converged and raise_on_failure:
         raise ConvergenceError(
@@ -447,7 +619,7 @@ def solve_atom(element, xc: str = "lda", charge: float = 0, spin="polarized", co
 
     error = None
     if estimate_error and converged:
-        fine = AtomicProblem(el.Z, cfg, func, _refined(mesh), electron_interaction)
+        fine = AtomicProblem(el.Z, cfg, func, _refined(mesh), electron_interaction, open_shell_exchange)
         start = fine.state_from(_radial_data(problem, orbitals, en, x))
         _, en_f, _, _, conv_f = run_scf(fine, settings, charge, start)
         if conv_f:
@@ -497,16 +669,28 @@ def _make_result(el, charge, func, spin, cfg, problem, orbitals, en, x, history,
             warnings.append(f"occupied orbital {o.label} ({o.spin}) is unbound: ε = {o.energy:+.6f} Ha ≥ 0; "
                             f"its density is confined by the mesh boundary r_max = {m.r_max:g} bohr and the "
                             "energy depends on that radius")
-    if problem.exx:
-        partial = [s for s in cfg.shells
-                   for f in ((s.up, s.down) if cfg.polarized else (s.occupation / 2,))
-                   if 1e-12 < f < s.capacity_per_spin - 1e-12]
-        if partial:
-            warnings.append(
-                "exact exchange of the fractionally occupied sub-shell(s) "
-                + ", ".join(sorted({x.label for x in partial}))
-                + " uses the equal-fractional-occupation (ensemble) form; for open shells its energy lies "
-                "above that of any single determinant (by ~0.1-0.2 Ha in HF for C or O)")
+    if problem.open_shells:
+        labels = sorted({f"{n}{L_LETTERS[l]}" for _, l, n in problem.open_shells})
+        warnings.append(
+            "exact exchange of the open sub-shell(s) " + ", ".join(labels)
+            + " is the average over all determinants of the configuration (Slater's average of "
+            "configuration, with each open sub-shell's own Fock operator); the energy is that of the "
+            "configuration average, which for a polarized ground term such as C, N+ or O 3P equals the "
+            "term energy, and lies above a symmetry-broken single determinant (unrestricted HF/KS in a "
+            "Gaussian basis) by its symmetry-breaking energy, a few mHa for first-row atoms"
+            + ("; a spin-restricted open shell averages over all its terms, not only the ground term"
+               if problem.ns == 1 else ""))
+    if problem.exchange is not None and problem.open_shell_exchange == "ensemble":
+        fractional = [f"{n}{L_LETTERS[ch.l]}" for ch in problem.channels for n, f in ch.shells
+                      if 1e-12 < (f if problem.ns == 2 else 0.5 * f) < 2 * ch.l + 1 - 1e-12]
+        if fractional:
+            warnings.append("exact exchange of the open sub-shell(s) " + ", ".join(sorted(set(fractional)))
+                            + " is the fractional-occupation ensemble form (open_shell_exchange='ensemble'): "
+                            "it lacks part of the self-exchange and lies well above the configuration average")
+    if problem.inner_unconverged:
+        warnings.append("the coupled open-shell orbital solve of channel(s) "
+                        + ", ".join(f"{L_LETTERS[l]} ({spin_names[s]})" for s, l in sorted(problem.inner_unconverged))
+                        + f" did not converge in {_INNER_MAX} sweeps in the last SCF iteration")
     if gauss > 1e-6:
         warnings.append(f"Gauss's law check: ∫ρ misses {gauss:.1e} electrons inside r_max = {m.r_max} bohr")
     spin_label = spin if isinstance(spin, str) else f"2S={spin}"
@@ -516,6 +700,7 @@ def _make_result(el, charge, func, spin, cfg, problem, orbitals, en, x, history,
         orbitals=tuple(orbs), converged=converged, iterations=len(history), history=tuple(history),
         virial_ratio=float(virial_ratio), virial_residual=float(virial_res), gauss_law_error=float(gauss),
         error_estimate=None if error is None else float(error), warnings=tuple(warnings),
-        settings={"mesh": mesh.to_dict(), "basis_size": m.size, "scf": vars(settings).copy()},
+        settings={"mesh": mesh.to_dict(), "basis_size": m.size, "scf": vars(settings).copy(),
+                  "open_shell_exchange": problem.open_shell_exchange},
         version=__version__, timings=timings, radial=_radial_data(problem, orbitals, en, x),
     )

@@ -104,6 +104,10 @@ def atom(symbol: str, xc: str, charge: int = 0, spin: str = "polarized", config:
         from .. import solve_atom
 
         kwargs: dict[str, Any] = dict(xc=xc, charge=charge, spin=spin, precision=precision, **opts)
+        if isinstance(kwargs.get("scf"), dict):  # SCF settings as a JSON table, e.g. {"mixing": 0.2}
+            from ..radial.scf import SCFSettings
+
+            kwargs["scf"] = SCFSettings(**kwargs["scf"])
         if config is not None:
             kwargs["config"] = config
         return _summary(solve_atom(symbol, **kwargs))

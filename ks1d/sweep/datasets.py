@@ -263,6 +263,9 @@ UNITS: dict[str, str] = {
     "spin_splitting": "eV",
     "sd_promotion": "eV",
     "homo_vs_ip": "eV",
+    "spin_polarization_energy": "eV",
+    "basis_set_error": "mhartree",
+    "dissociation_energy": "eV",
 }
 
 _UNIT_ALIASES = {
@@ -341,6 +344,10 @@ def reference_for(quantity: str, system: System, functional: str | None = None,
             q = {"bond_length": "diatomic_bond_length", "harmonic_frequency": "diatomic_harmonic_frequency"}
             ref = _from_loader(q[quantity], system.key if system.dataset in ("g2-1", "diatomics") else
                                _formula(system), quantity)
+    elif quantity == "dissociation_energy":
+        if system.is_diatomic:
+            ref = _from_loader("diatomic_dissociation_energy", system.key if system.dataset in ("g2-1", "diatomics")
+                               else _formula(system), quantity)
     elif quantity == "spin_splitting":
         if system.dataset == "g2-1-pair":
             ref = g2_1_singlet_triplet(system.key)

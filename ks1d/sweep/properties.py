@@ -27,7 +27,7 @@ from typing import Any, Callable
 
 from .. import units
 from ..errors import CalculationError, InputError
-from . import calculations
+from . import calculations, survey
 from .curvefit import fit_curve, harmonic_wavenumber, isotope_masses
 from .systems import System, atom_multiplicity, diatomic_xyz, expand_configuration
 
@@ -61,16 +61,23 @@ class Context:
     # -- one energy of one species -------------------------------------------
     def energy(self, label: str, system: System | None = None, charge: int | None = None,
                multiplicity: int | None = None, config: str | None = None, xyz: str | None = None,
-               force_basis: bool = False) -> dict[str, Any]:
-        """One solver call; an exception leaving it names the step in ``exc.sweep_step``."""
+               force_basis: bool = False, spin: str | None = None,
+               atom_options: dict[str, Any] | None = None) -> dict[str, Any]:
+        """One solver call; an exception leaving it names the step in ``exc.sweep_step``.
+
+        ``spin`` and ``atom_options`` override the settings' radial spin
+        treatment and solver options for this call only.
+        """
         try:
-            return self._energy(label, system, charge, multiplicity, config, xyz, force_basis)
+            return self._energy(label, system, charge, multiplicity, config, xyz, force_basis, spin,
+                                atom_options)
         except Exception as exc:
             if not hasattr(exc, "sweep_step"):
                 exc.sweep_step = label  # type: ignore[attr-defined]
             raise
 
-    def _energy(self, label, system, charge, multiplicity, config, xyz, force_basis) -> dict[str, Any]:
+    def _energy(self, label, system, charge, multiplicity, config, xyz, force_basis, spin=None,
+                atom_options=None) -> dict[str, Any]:
         s = system or self.system
         q = s.charge if charge is None else charge
         st = self.settings
@@ -84,10 +91,13 @@ class Context:
             return summary
         radial = s.is_atom and xyz is None and not force_basis and st.get("atoms", "radial") == "radial"
         if radial:
-            summary, dt = calculations.atom(s.symbol, self.functional, charge=q, spin=st.get("spin", "polarized"),
+            spin = spin or st.get("spin", "polarized")
+            options = st.get("atom_options") if atom_options is None else atom_options
+            summary, dt = calculations.atom(s.symbol, self.functional, charge=q, spin=spin,
                                             config=config, precision=st.get("precision", "normal"),
-                                            options=st.get("atom_options"))
-            record = {"label": label, "solver": "radial", "species": s.symbol, "charge": q, "config": config}
+                                            options=options)
+            record = {"label": label, "solver": "radial", "species": s.symbol, "charge": q, "config": config,
+                      "spin": spin}
         else:
             if config is not None:
                 raise InputError(f"{label}: a configuration can only be set for radial atoms")
@@ -180,6 +190,12 @@ def sd_configurations(symbol: str) -> tuple[str, str]:
     a = f"{core}] {pre}{nd}d{v - 2} {ns}s2"
     b = f"{core}] {pre}{nd}d{v - 1} {ns}s1"
     return a, b
+
+
+def _neutral_atom_only(s: System) -> str | None:
+    if not s.is_atom or s.charge != 0 or s.pair:
+        return "needs a neutral atom"
+    return None
 
 
 def _sd_check(s: System) -> str | None:
@@ -303,6 +319,15 @@ KINDS: dict[str, PropertyKind] = {
                      _sd_promotion, "E(d^(n+1) s^1) - E(d^n s^2)"),
         PropertyKind("homo_vs_ip", ("homo_vs_ip",), _ATOM_SETTINGS, _atom_or_molecule_ion, _homo_vs_ip,
                      "-HOMO eigenvalue, compared with the experimental IP"),
+        PropertyKind("atom_survey", ("ionisation_potential", "electron_affinity", "homo_vs_ip",
+                                     "spin_polarization_energy", "sd_promotion"),
+                     ("precision", "atom_options"), _neutral_atom_only, survey.atom_survey,
+                     "IP, EA, -HOMO, spin-polarization and s-d promotion energies of one atom (radial)"),
+        PropertyKind("basis_set_error", ("basis_set_error",), ("basis", "precision"), _neutral_atom_only,
+                     survey.basis_set_error, "E(basis) - E(radial limit) of one atom"),
+        PropertyKind("diatomic_survey", ("bond_length", "harmonic_frequency", "dissociation_energy"),
+                     _MOL_SETTINGS + ("scan_points", "scan_step"), _diatomic_only, survey.diatomic_survey,
+                     "r_e, omega_e and D_0 = D_e - ZPE of a diatomic in a basis"),
     )
 }
 

@@ -12,7 +12,7 @@ from .store import Store
 
 #: Rough relative cost of a job kind (seconds per job in the example sweep, def2-TZVP molecules,
 #: two workers), used to start expensive jobs first and to weigh the progress ETA.
-_COST = {"diatomic_curve": 22.0, "atomization_energy": 4.6, "spin_splitting": 4.2, "sd_promotion": 3.0,
+_COST = {"diatomic_survey": 24.0, "basis_set_error": 2.0, "atom_survey": 3.0, "diatomic_curve": 22.0, "atomization_energy": 4.6, "spin_splitting": 4.2, "sd_promotion": 3.0,
          "homo_vs_ip": 1.0, "ionisation_potential": 1.1, "electron_affinity": 1.0, "total_energy": 0.5}
 
 
@@ -49,16 +49,24 @@ def run_sweep(spec: SweepSpec, store_path: str, executor, retry_failed: bool = F
     (each stored row is replaced when its new result arrives); ``limit`` caps
     the number of jobs run now (the rest stay as they are).
     """
+    return run_jobs(spec.name, spec.source_text, spec.jobs(), store_path, executor, retry_failed=retry_failed,
+                    progress=progress, stream=stream, limit=limit, rerun=rerun)
+
+
+def run_jobs(name: str, source_text: str, jobs: list[Job], store_path: str, executor,
+             retry_failed: bool = False, progress: bool = True, stream: TextIO | None = None,
+             limit: int | None = None, rerun: bool = False) -> RunSummary:
+    """Register ``jobs`` under the sweep ``name`` and run those not finished; each result is stored at once."""
     t0 = time.perf_counter()
-    jobs = spec.jobs()
+    jobs = list(jobs)
     with Store(store_path) as store:
-        store.register(spec.name, jobs)
+        store.register(name, jobs)
         todo_keys = store.to_run([j.key for j in jobs], retry_failed=retry_failed or rerun, rerun_done=rerun)
         todo = sorted((j for j in jobs if j.key in todo_keys), key=_cost, reverse=True)
         if limit is not None:
             todo = todo[:limit]
-        run_id = store.start_run(spec.name, spec.source_text, executor.name, getattr(executor, "workers", None))
-        bar = Progress(len(todo), stream=stream, enabled=progress, label=spec.name,
+        run_id = store.start_run(name, source_text, executor.name, getattr(executor, "workers", None))
+        bar = Progress(len(todo), stream=stream, enabled=progress, label=name,
                        total_work=sum(_cost(j) for j in todo))
         counts = {"done": 0, "failed": 0}
 
@@ -73,6 +81,6 @@ def run_sweep(spec: SweepSpec, store_path: str, executor, retry_failed: bool = F
         finally:
             bar.close()
             store.finish_run(run_id, counts["done"], counts["failed"])
-    return RunSummary(sweep=spec.name, total=len(jobs), skipped=len(jobs) - len(todo_keys), ran=len(todo),
+    return RunSummary(sweep=name, total=len(jobs), skipped=len(jobs) - len(todo_keys), ran=len(todo),
                       done=counts["done"], failed=counts["failed"], seconds=time.perf_counter() - t0,
                       executor=executor.name, workers=getattr(executor, "workers", None))

@@ -20,8 +20,8 @@ from .. import __version__
 from .results import FailureRow, ResultRow, functionals_of, ordered, systems_of
 from .statistics import ErrorStatistics
 
-_DECIMALS = {"hartree": 6, "eV": 3, "kcal/mol": 2, "angstrom": 4, "cm^-1": 1}
-_UNIT_TEXT = {"angstrom": "Å", "cm^-1": "cm⁻¹"}
+_DECIMALS = {"hartree": 6, "mhartree": 3, "eV": 3, "kcal/mol": 2, "angstrom": 4, "cm^-1": 1}
+_UNIT_TEXT = {"angstrom": "Å", "cm^-1": "cm⁻¹", "mhartree": "mHa"}
 
 QUANTITY_TITLES = {
     "total_energy": "Total energy",
@@ -33,6 +33,9 @@ QUANTITY_TITLES = {
     "spin_splitting": "Spin-state splitting",
     "sd_promotion": "s→d promotion energy E(dⁿ⁺¹s¹) − E(dⁿs²)",
     "homo_vs_ip": "−ε_HOMO against the experimental IP",
+    "spin_polarization_energy": "Spin-polarization energy E_restricted − E_polarized",
+    "basis_set_error": "Basis-set error E(basis) − E(radial limit)",
+    "dissociation_energy": "Dissociation energy D_0 = D_e − ½ω_e",
 }
 
 

@@ -1,0 +1,200 @@
+"""Survey job kinds: several related quantities from one job, sharing its solver calls.
+
+These kinds exist for the functional sanity report (:mod:`ks1d.report`), which
+asks many questions of each (element, functional) and must answer them fast;
+a sweep spec may use them too.  Each returns display-unit quantities like the
+other kinds and records every solver call, so each number can be traced to
+the calculations behind it.
+
+* ``atom_survey`` — one neutral atom, radial solver, polarized ground state
+  (Hund's rule, spherical):
+
+  - IP = E(X⁺) − E(X)                                            (eV)
+  - EA = E(X) − E(X⁻)                                            (eV)
+  - −ε_HOMO of X, to compare with the experimental IP: for the exact
+    functional −ε_HOMO = IP (the ionisation-potential theorem: Perdew, Parr,
+    Levy, Balduz, Phys. Rev. Lett. 49, 1691 (1982)); the gap measures the
+    self-interaction (delocalisation) error of an approximate functional (eV)
+  - spin-polarization energy E_restricted(X) − E_polarized(X), zero for
+    closed shells                                                (eV)
+  - s→d promotion E(dⁿ⁺¹s¹) − E(dⁿs²) for transition metals      (eV)
+
+  An anion whose highest occupied eigenvalue is positive has its extra
+  electron unbound by the functional's Kohn–Sham potential (the classic
+  self-interaction failure of semilocal functionals for anions): the ΔSCF
+  EA then rests on the finite radial box and is flagged.  A step that fails
+  (for instance an anion SCF that does not converge even with the
+  conservative retry) is recorded in ``details["failed_steps"]`` and its
+  quantity is left out; the neutral atom failing fails the job.
+
+* ``basis_set_error`` — ΔE = E(basis) − E(radial limit) of the neutral atom
+  in mHa (:func:`ks1d.validate.basis_error.atom_basis_error`).
+
+* ``diatomic_survey`` — r_e and ω_e from the energy scan of ``diatomic_curve``
+  plus the dissociation energy from the ground-state atoms in the same basis:
+
+      D_e = E(A) + E(B) − E_fit(r_e),    D_0 ≈ D_e − ½ ω_e
+
+  (harmonic zero-point energy), reported as ``dissociation_energy`` (eV) so
+  that it compares with the experimental D_0.  The atoms are UKS
+  determinants at their Hund's-rule multiplicity with integer occupations
+  (common practice for binding energies).
+"""
+from __future__ import annotations
+
+from typing import Any
+
+from .. import units
+from ..errors import CalculationError, InputError
+
+EV = units.HARTREE_TO_EV
+
+#: SCF settings of the one retry an atom gets when its SCF does not converge: slower, longer mixing.
+RETRY_SCF = {"mixing": 0.2, "history": 8, "max_iterations": 300}
+
+
+def _atom_energy(c, label: str, **kw) -> dict[str, Any]:
+    """A radial energy; on non-convergence one retry with :data:`RETRY_SCF` (recorded in details)."""
+    from ..errors import ConvergenceError
+
+    try:
+        return c.energy(label, **kw)
+    except ConvergenceError:
+        opts = dict(c.settings.get("atom_options") or {})
+        opts["scf"] = dict(RETRY_SCF)
+        c.details.setdefault("retried_steps", []).append(label)
+        return c.energy(label, atom_options=opts, **kw)
+
+
+def _optional(c, label: str, **kw) -> dict[str, Any] | None:
+    """Like :func:`_atom_energy`, but a failure is recorded and gives ``None``."""
+    try:
+        return _atom_energy(c, label, **kw)
+    except (CalculationError, InputError) as exc:
+        c.details.setdefault("failed_steps", []).append({"step": label, "error": str(exc).splitlines()[0]})
+        return None
+
+
+def _is_closed_shell(symbol: str) -> bool:
+    from .systems import atom_multiplicity
+
+    return atom_multiplicity(symbol, 0) == 1
+
+
+def atom_survey(c) -> dict[str, float]:
+    from .properties import sd_configurations
+
+    s = c.system
+    if not s.is_atom or s.charge != 0:
+        raise InputError("atom_survey needs a neutral atom")
+    sym = s.symbol
+    values: dict[str, float] = {}
+    neutral = _atom_energy(c, sym)
+    e0 = neutral["total_energy"]
+    if neutral["homo_energy"] is not None:
+        values["homo_vs_ip"] = -neutral["homo_energy"] * EV
+    cation = _optional(c, f"{sym} cation", charge=1)
+    if cation is not None:
+        values["ionisation_potential"] = (cation["total_energy"] - e0) * EV
+    anion = _optional(c, f"{sym} anion", charge=-1)
+    if anion is not None:
+        values["electron_affinity"] = (e0 - anion["total_energy"]) * EV
+        eps = anion["homo_energy"]
+        c.details["anion_homo_energy"] = eps
+        c.details["anion_unbound_orbital"] = eps is not None and eps > 0
+    if _is_closed_shell(sym):
+        values["spin_polarization_energy"] = 0.0
+        c.details["spin_polarization"] = "closed shell: the polarized and restricted atoms coincide"
+    else:
+        restricted = _optional(c, f"{sym} spin-restricted", spin="restricted")
+        if restricted is not None:
+            values["spin_polarization_energy"] = (restricted["total_energy"] - e0) * EV
+    try:
+        a, b = sd_configurations(sym)
+    except InputError:
+        a = b = None
+    if a is not None:
+        ea = _optional(c, f"{sym} {a}", config=a)
+        eb = _optional(c, f"{sym} {b}", config=b)
+        c.details.update({"sd_from": a, "sd_to": b})
+        if ea is not None and eb is not None:
+            values["sd_promotion"] = (eb["total_energy"] - ea["total_energy"]) * EV
+    return values
+
+
+def basis_set_error(c) -> dict[str, float]:
+    import time
+
+    from ..validate.basis_error import atom_basis_error
+
+    s = c.system
+    if not s.is_atom or s.charge != 0:
+        raise InputError("basis_set_error needs a neutral atom")
+    if "basis" not in c.settings:
+        raise InputError("basis_set_error needs a 'basis' setting")
+    t0 = time.perf_counter()
+    row = atom_basis_error(s.symbol, c.settings["basis"], xc=c.functional,
+                           precision=c.settings.get("precision", "normal"))
+    c.seconds.append(time.perf_counter() - t0)
+    c.calculations.append({"label": f"{s.symbol} in {c.settings['basis']}", "solver": "gaussian",
+                           "species": s.symbol, "charge": 0, "multiplicity": row.multiplicity,
+                           "basis": c.settings["basis"], "total_energy": row.basis_energy,
+                           "occupations": row.occupations})
+    c.calculations.append({"label": f"{s.symbol} radial limit", "solver": "radial", "species": s.symbol,
+                           "charge": 0, "total_energy": row.radial_energy})
+    if row.warnings:
+        c.details["warnings"] = list(row.warnings)
+    return {"basis_set_error": row.error_mhartree}
+
+
+def _ground_multiplicity_of_diatomic(system) -> int:
+    """2S+1 from the term symbol in the reference data's note ('ground state X 3Sigma_g-'), else parity."""
+    import re
+
+    from ..reference import data
+
+    if system.multiplicity is not None:
+        return system.multiplicity
+    try:
+        note = data.reference_value("diatomic_bond_length", system.key or "").note or ""
+    except InputError:
+        note = ""
+    m = re.search(r"\bX\s+(\d)", note)
+    return int(m.group(1)) if m else system.ground_multiplicity()
+
+
+def diatomic_system(formula: str):
+    """A diatomic of ks1d's reference data at its experimental r_e, with its ground-state multiplicity."""
+    from dataclasses import replace
+
+    from .datasets import diatomic
+
+    base = diatomic(formula)
+    return replace(base, multiplicity=_ground_multiplicity_of_diatomic(replace(base, multiplicity=None)))
+
+
+def diatomic_survey(c) -> dict[str, float]:
+    import numpy as np
+
+    from .curvefit import fit_curve
+    from .properties import _diatomic_curve
+    from .systems import System
+
+    s = c.system
+    if not s.is_diatomic:
+        raise InputError("diatomic_survey needs a diatomic molecule")
+    values = _diatomic_curve(c)
+    scan = c.details["scans"][-1]
+    r_b = np.asarray(scan["r_angstrom"]) * units.ANGSTROM_TO_BOHR
+    e = np.asarray(scan["energy"])
+    r_e, _k, coef = fit_curve(r_b, e)
+    e_min = float(e.min() + np.polynomial.Polynomial(coef)(r_e - r_b.mean()))
+    atoms = 0.0
+    for sym in s.symbols:
+        atom = System(name=sym, kind="atom", symbol=sym)
+        atoms += c.energy(f"{sym} atom in {c.settings['basis']}", system=atom, force_basis=True)["total_energy"]
+    d_e = (atoms - e_min) * EV
+    zpe = 0.5 * values["harmonic_frequency"] / units.HARTREE_TO_INV_CM * EV
+    c.details.update({"fitted_minimum_energy": e_min, "D_e_eV": d_e, "zero_point_energy_eV": zpe})
+    values["dissociation_energy"] = d_e - zpe
+    return values

@@ -15,7 +15,7 @@ import sys
 from . import __version__
 from .errors import CalculationError, InputError
 
-COMMANDS = ("atom", "molecule", "sweep", "refs", "check", "basis_error")
+COMMANDS = ("atom", "molecule", "report", "sweep", "refs", "check", "basis_error")
 
 
 class _Parser(argparse.ArgumentParser):

@@ -1,0 +1,173 @@
+"""What a functional sanity report computes: validated input → the list of jobs.
+
+Everything a user can get wrong is checked here, before any calculation:
+element symbols, the structure file, functional names, the basis (that it
+exists, has every element and needs no effective core potential).
+
+Per element and functional (neutral atom, radial solver, basis-set limit):
+an ``atom_survey`` job (IP, EA, −ε_HOMO, spin-polarization and s→d promotion
+energies) and, with a planned basis, a ``basis_set_error`` job.  Per element
+pair with experimental diatomic data (bonded pairs of a structure file, or
+every pair of an element list) and functional: a ``diatomic_survey`` job in
+the planned basis (``DEFAULT_DIATOMIC_BASIS`` when none is planned).
+
+What a solver cannot do is skipped with a note: the radial solver has no
+range-separated hybrids, so HSE06-type functionals get no atomic battery
+(their diatomics still run in the Gaussian basis).
+"""
+from __future__ import annotations
+
+from dataclasses import dataclass
+from typing import Sequence
+
+from ..errors import InputError
+from ..sweep.jobs import Job, freeze_settings
+from ..sweep.systems import System
+from .structure import Structure, read_structure
+
+#: The default ladder: LDA, two GGAs, a meta-GGA, two global hybrids and a screened hybrid.
+DEFAULT_FUNCTIONALS = ("lda", "pbe", "pbesol", "r2scan", "pbe0", "hse06", "b3lyp")
+#: Basis of the diatomic scans when no basis is planned (triple-zeta with polarization: common practice).
+DEFAULT_DIATOMIC_BASIS = "def2-tzvp"
+
+ATOM_SETTINGS = {"precision": "normal", "atom_options": {"estimate_error": False}}
+SCAN = {"scan_points": 7, "scan_step": 0.02}
+
+
+@dataclass(frozen=True)
+class Skip:
+    """A part of the battery not computed, and why."""
+
+    functional: str
+    part: str
+    reason: str
+
+
+@dataclass(frozen=True)
+class ReportPlan:
+    """The validated request and its jobs."""
+
+    elements: tuple[str, ...]
+    functionals: tuple[str, ...]
+    basis: str | None
+    diatomic_basis: str | None
+    diatomics: tuple[str, ...]  # formulas, e.g. ("N2", "CO")
+    pairs_without_data: tuple[str, ...]  # bonded pairs with no experimental diatomic data
+    source: str  # what the elements came from, in words
+    structure_path: str | None
+    skipped: tuple[Skip, ...]
+    jobs: tuple[Job, ...]
+
+    @property
+    def title(self) -> str:
+        return f"{' '.join(self.elements)} × {', '.join(self.functionals)}"
+
+
+def _elements(tokens: Sequence[str]) -> list[str]:
+    from ..sweep.refs import parse_elements
+
+    return parse_elements(tokens)
+
+
+def _functionals(names: Sequence[str] | None) -> tuple[str, ...]:
+    from ..xc import resolve_functional
+
+    if names is None:
+        return DEFAULT_FUNCTIONALS
+    out: list[str] = []
+    if isinstance(names, str):
+        names = [names]
+    for name in names:
+        resolve_functional(str(name))  # UnknownFunctional with a suggestion
+        out.append(str(name).strip().lower())
+    if not out:
+        raise InputError("give at least one functional, e.g. --xc pbe,pbe0")
+    return tuple(dict.fromkeys(out))
+
+
+def _check_basis(basis: str, symbols: Sequence[str]) -> None:
+    from ..gaussian.basis import check_basis
+
+    check_basis(basis, symbols)  # BasisError: unknown name, missing element, needs an ECP
+
+
+def pair_formula(a: str, b: str, known: Sequence[str]) -> str | None:
+    """The reference-data formula of the pair (a, b) ('O2', 'CO', 'HCl'), or None when there is no data."""
+    candidates = [f"{a}2"] if a == b else [f"{a}{b}", f"{b}{a}"]
+    for c in candidates:
+        if c in known:
+            return c
+    return None
+
+
+def _pair_label(a: str, b: str) -> str:
+    return f"{a}2" if a == b else f"{a}–{b}"
+
+
+def plan_report(elements: Sequence[str] = (), structure: str | Structure | None = None,
+                functionals: Sequence[str] | None = None, basis: str | None = None,
+                diatomics: bool = True) -> ReportPlan:
+    """Validate the request and list its jobs (no calculation runs here)."""
+    from ..sweep.datasets import diatomic_names
+    from ..sweep.survey import diatomic_system
+    from ..xc import resolve_functional
+
+    if structure is not None and elements:
+        raise InputError("give an element list or a structure file, not both")
+    st: Structure | None = None
+    if structure is not None:
+        st = structure if isinstance(structure, Structure) else read_structure(str(structure))
+        symbols = list(st.elements)
+        source = f"structure file {st.path} ({len(st.symbols)} atoms)"
+        pairs = list(st.bonded_pairs())
+    else:
+        symbols = _elements(elements)
+        source = "element list"
+        pairs = [(a, b) for i, a in enumerate(symbols) for b in symbols[i:]]
+    xcs = _functionals(functionals)
+    if basis is not None:
+        basis = str(basis).strip()
+        if not basis:
+            raise InputError("the basis name is empty")
+        _check_basis(basis, symbols)
+
+    known = set(diatomic_names())
+    with_data: list[str] = []
+    without: list[str] = []
+    if diatomics:
+        for a, b in pairs:
+            f = pair_formula(a, b, known)
+            if f is None:
+                if structure is not None:
+                    without.append(_pair_label(a, b))
+            elif f not in with_data:
+                with_data.append(f)
+    diatomic_basis = (basis or DEFAULT_DIATOMIC_BASIS) if with_data else None
+    if with_data and basis is None:
+        _check_basis(DEFAULT_DIATOMIC_BASIS, sorted({s for f in with_data for s in diatomic_system(f).symbols}))
+
+    jobs: list[Job] = []
+    skipped: list[Skip] = []
+    atom_settings = freeze_settings(ATOM_SETTINGS)
+    for xc in xcs:
+        func = resolve_functional(xc)
+        radial_ok = not func.is_range_separated
+        if not radial_ok:
+            reason = ("the radial solver has no range-separated exact exchange yet, so there are no "
+                      "basis-set-limit atoms for this functional")
+            skipped.append(Skip(xc, "atomic battery (IP, EA, −ε_HOMO, spin polarization, s→d)", reason))
+            if basis is not None:
+                skipped.append(Skip(xc, "basis-set error", reason))
+        for sym in symbols:
+            system = System(name=sym, kind="atom", symbol=sym, source="element symbol")
+            if radial_ok:
+                jobs.append(Job(system=system, property="atom_survey", functional=xc, settings=atom_settings))
+                if basis is not None:
+                    jobs.append(Job(system=system, property="basis_set_error", functional=xc,
+                                    settings=freeze_settings({"basis": basis, "precision": "normal"})))
+        for f in with_data:
+            jobs.append(Job(system=diatomic_system(f), property="diatomic_survey", functional=xc,
+                            settings=freeze_settings({"basis": diatomic_basis, **SCAN})))
+    return ReportPlan(elements=tuple(symbols), functionals=xcs, basis=basis, diatomic_basis=diatomic_basis,
+                      diatomics=tuple(with_data), pairs_without_data=tuple(without), source=source,
+                      structure_path=None if st is None else st.path, skipped=tuple(skipped), jobs=tuple(jobs))

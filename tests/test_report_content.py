@@ -1,0 +1,194 @@
+"""ks1d report: what the page says, against outside references (NIST via mendeleev, pyscf, NIST LSD)."""
+from __future__ import annotations
+
+import html
+import re
+import sqlite3
+
+import pytest
+
+from ks1d import units
+from ks1d.report import functional_report
+from ks1d.report.analysis import rank_functionals
+from ks1d.sweep.executors import InlineExecutor
+from ks1d.sweep.results import ResultRow
+
+
+def _row(out, q, system, xc):
+    r = out.data.value(q, system, xc)
+    assert r is not None, (q, system, xc)
+    return r
+
+
+def test_hydrogen_ip_is_minus_the_nist_lsd_energy(small_report):
+    # IP(H) = -E(H); NIST SRD 141 (Kotochigova et al., PRA 55, 191 (1997)) LSD E(H) = -0.478671 Ha (from memory)
+    assert _row(small_report, "ionisation_potential", "H", "lda").value == pytest.approx(
+        0.478671 * units.HARTREE_TO_EV, abs=3e-5)
+
+
+def test_experimental_columns_are_the_nist_and_crc_values(small_report):
+    # mendeleev (NIST ASD ionisation energies, CRC electron affinities) is the outside source of the reference column
+    mendeleev = pytest.importorskip("mendeleev")
+    for sym in ("H", "Li"):
+        el = mendeleev.element(sym)
+        ip = _row(small_report, "ionisation_potential", sym, "pbe")
+        assert ip.reference == pytest.approx(el.ionenergies[1], abs=1e-6)
+        assert ip.error == pytest.approx(ip.value - el.ionenergies[1], abs=1e-9)
+        assert _row(small_report, "electron_affinity", sym, "pbe").reference == pytest.approx(
+            el.electron_affinity, abs=1e-6)
+
+
+@pytest.mark.parametrize("xc, pyscf_xc, tol", [
+    ("lda", "lda,vwn", 2e-5),
+    # PBE: ks1d's open-shell and Be-like GGA energies lie ~1e-5 Ha below pyscf's converged plateau (a known,
+    # unexplained finding in DEVELOPERS.md); 5e-4 eV covers it and still catches any real battery error
+    ("pbe", "pbe,pbe", 5e-4),
+])
+def test_lithium_ip_and_homo_match_pyscf(small_report, xc, pyscf_xc, tol):
+    # pyscf UKS(Li) and RKS(Li+) in a large even-tempered s basis (tests/pyscf_atoms.py: within 0.1 uHa of the
+    # basis-set limit for closed shells); Li 2s1 is spherical, so both codes describe the same states
+    from pyscf import dft, gto
+
+    from pyscf_atoms import even_tempered
+
+    basis = {"Li": [[0, [a, 1.0]] for a in even_tempered(0.01, 1e7, 1.6)]}
+    energies, homo = [], None
+    for charge, spin in ((0, 1), (1, 0)):
+        mol = gto.M(atom="Li 0 0 0", basis=basis, charge=charge, spin=spin, verbose=0)
+        mf = (dft.UKS if spin else dft.RKS)(mol)
+        mf.xc = pyscf_xc
+        mf.grids.atom_grid = (500, 50)
+        mf.grids.prune = None
+        mf.conv_tol = 1e-12
+        energies.append(mf.kernel())
+        if spin:
+            homo = max(mf.mo_energy[0][mf.mo_occ[0] > 0])
+    ip = (energies[1] - energies[0]) * units.HARTREE_TO_EV
+    assert _row(small_report, "ionisation_potential", "Li", xc).value == pytest.approx(ip, abs=tol)
+    assert _row(small_report, "homo_vs_ip", "Li", xc).value == pytest.approx(-homo * units.HARTREE_TO_EV,
+                                                                            abs=max(tol, 2e-4))
+
+
+def test_h2_bond_length_and_dissociation_energy_match_pyscf(small_report):
+    # pyscf RKS/UKS (test-time reference), LDA (Slater + VWN5) / def2-SVP: the same 7 bond lengths as the stored
+    # scan, quartic fit, D_0 = 2 E(H) - E(r_e) - omega_e / 2
+    import numpy as np
+    from pyscf import dft, gto
+
+    job = next(j for j in small_report.data.jobs if j.property == "diatomic_survey" and j.system == "H2"
+               and j.functional == "lda")
+    grid = [float(re.search(r"R = ([0-9.]+)", c["label"]).group(1)) for c in job.calculations if "R =" in c["label"]]
+
+    def energy(atom, spin):
+        mf = (dft.UKS if spin else dft.RKS)(gto.M(atom=atom, basis="def2-svp", spin=spin, verbose=0))
+        mf.xc = "lda,vwn"
+        mf.grids.level = 5
+        mf.conv_tol = 1e-11
+        return mf.kernel()
+
+    e = np.array([energy(f"H 0 0 0; H 0 0 {r}", 0) for r in grid])
+    x = np.array(grid) * units.ANGSTROM_TO_BOHR
+    p = np.polynomial.Polynomial.fit(x - x.mean(), e, 4).convert()
+    root = min((z.real for z in p.deriv().roots() if abs(z.imag) < 1e-12 and p.deriv(2)(z.real) > 0),
+               key=lambda z: abs(z))
+    mu = 1.00782503 / 2 * 1822.888486  # 1H mass (AME, as in pyscf.data.elements) in electron masses
+    omega_au = np.sqrt(p.deriv(2)(root) / mu)
+    d0 = (2 * energy("H 0 0 0", 1) - p(root) - 0.5 * omega_au) * units.HARTREE_TO_EV
+    assert _row(small_report, "bond_length", "H2", "lda").value == pytest.approx(
+        (root + x.mean()) * units.BOHR_TO_ANGSTROM, abs=3e-4)
+    assert _row(small_report, "dissociation_energy", "H2", "lda").value == pytest.approx(d0, abs=2e-3)
+
+
+def test_unbound_anions_are_flagged(small_report):
+    # H- and Li- are bound in experiment (EA 0.754 and 0.618 eV, CRC via mendeleev) but LDA/PBE put the extra
+    # electron in a positive orbital energy (the self-interaction failure for anions; Jensen, J. Chem. Theory
+    # Comput. 6, 2726 (2010), from memory): each of the four anions is flagged on its EA cell only
+    flags = [f for f in small_report.data.flags if f.kind == "unbound anion"]
+    assert {(f.system, f.functional) for f in flags} == {("H", "lda"), ("H", "pbe"), ("Li", "lda"), ("Li", "pbe")}
+    assert all(f.quantity == "electron_affinity" for f in flags)
+
+
+def test_every_number_on_the_page_links_to_its_stored_job(small_report):
+    page = open(small_report.paths["html"], encoding="utf-8").read()
+    con = sqlite3.connect(small_report.store)
+    stored = {k for (k,) in con.execute("SELECT key FROM jobs WHERE status='done'")}
+    links = set(re.findall(r'href="#job-([0-9a-f]{12})"', page))
+    anchors = set(re.findall(r'id="job-([0-9a-f]{12})"', page))
+    assert links and links <= anchors
+    assert links <= {k[:12] for k in stored}
+    # the IP of Li with PBE as printed in its cell equals the stored value (3 decimals, eV)
+    li = _row(small_report, "ionisation_potential", "Li", "pbe")
+    assert f"{li.value:.3f} ({li.error:+.3f})" in html.unescape(page)
+
+
+def test_page_is_self_contained_and_has_units(small_report):
+    page = open(small_report.paths["html"], encoding="utf-8").read()
+    assert "<script" not in page
+    assert not re.search(r'(src|href)="(?!data:image/png;base64,|#)', page)  # no external resource or link
+    assert "http" not in re.sub(r"data:image/png;base64,[A-Za-z0-9+/=]+", "", page)
+    import os
+
+    n_figures = len(os.listdir(small_report.paths["figures"]))
+    assert n_figures >= 5 and page.count('src="data:image/png;base64,') == n_figures
+    for unit in ("(eV)", "(Å)", "(cm⁻¹)", "(mHa)"):
+        assert unit in html.unescape(page)
+    assert "numerical model results for research use" in page
+
+
+def test_markdown_twin_has_the_same_tables(small_report):
+    page = html.unescape(open(small_report.paths["html"], encoding="utf-8").read())
+    md = open(small_report.paths["markdown"], encoding="utf-8").read()
+    cells = re.findall(r"\d+\.\d{3} \([+-]\d+\.\d{3}\)", page)
+    assert cells and all(c in md for c in cells)
+    for name in re.findall(r"\]\(([^)]+\.png)\)", md):
+        import os
+
+        png = os.path.join(os.path.dirname(small_report.paths["markdown"]), name)
+        assert open(png, "rb").read(8) == b"\x89PNG\r\n\x1a\n"
+
+
+def test_a_second_report_reuses_the_store(small_report, tmp_path):
+    again = functional_report(["H", "Li"], functionals=["lda", "pbe"], basis="def2-svp",
+                              output=str(tmp_path / "again"), store=small_report.store, executor=InlineExecutor())
+    assert again.jobs_run == 0 and again.jobs_reused == small_report.jobs_total
+    assert [r.value for r in again.data.rows] == [r.value for r in small_report.data.rows]
+
+
+def test_an_interrupted_report_keeps_what_finished(tmp_path):
+    class StopsAfterTwo(InlineExecutor):
+        def run(self, jobs, on_result):
+            for i, job in enumerate(jobs):
+                if i == 2:
+                    raise KeyboardInterrupt
+                super().run([job], on_result)
+
+    store = str(tmp_path / "s.sqlite")
+    with pytest.raises(KeyboardInterrupt):
+        functional_report(["H", "He", "Li"], functionals=["lda"], output=str(tmp_path / "r"), store=store,
+                          executor=StopsAfterTwo(), diatomics=False)
+    done = sqlite3.connect(store).execute("SELECT COUNT(*) FROM jobs WHERE status='done'").fetchone()[0]
+    assert done == 2
+    out = functional_report(["H", "He", "Li"], functionals=["lda"], output=str(tmp_path / "r"), store=store,
+                            executor=InlineExecutor(), diatomics=False)
+    assert (out.jobs_reused, out.jobs_run) == (2, 1)
+
+
+def _r(q, s, f, err):
+    return ResultRow(system=s, quantity=q, functional=f, value=err, unit="eV", reference=0.0, error=err,
+                     reference_source="test", reference_from_memory=False, job="0" * 64)
+
+
+def test_ranking_uses_the_common_set_and_leaves_out_thin_coverage():
+    # constructed errors (not physics): B misses one comparison, so it is dropped for A too; C has too few
+    rows = [_r("ionisation_potential", "X", "A", 0.1), _r("ionisation_potential", "Y", "A", -0.3),
+            _r("electron_affinity", "X", "A", 0.9), _r("ionisation_potential", "Z", "A", 0.2),
+            _r("ionisation_potential", "X", "B", 0.2), _r("ionisation_potential", "Y", "B", 0.2),
+            _r("ionisation_potential", "Z", "B", 0.2),
+            _r("ionisation_potential", "X", "C", 0.0)]
+    ranking, common, dropped = rank_functionals(rows, ["A", "B", "C"])
+    by = {e.functional: e for e in ranking}
+    assert set(common) == {("ionisation_potential", s) for s in "XYZ"}
+    assert dropped == (("electron_affinity", "X"),)
+    assert by["A"].score == pytest.approx(0.2) and by["B"].score == pytest.approx(0.2)
+    assert by["C"].rank is None and "not ranked" in by["C"].note
+    assert by["A"].mae["electron_affinity"] == (pytest.approx(0.9), 1)

@@ -39,6 +39,7 @@ class Flag:
     text: str
     job: str
     quantity: str | None = None  # the quantity it concerns; None: the whole job
+    value: float | None = None  # the number behind the flag, in eV (the anion's eigenvalue for "unbound anion")
 
 
 def _step_quantity(label: str) -> str | None:
@@ -148,7 +149,7 @@ def _flags(jr: JobRow) -> list[Flag]:
         out.append(Flag(jr.system, jr.functional, "unbound anion",
                         f"the anion's highest occupied eigenvalue is {eps * HARTREE_TO_EV:+.2f} eV > 0: the extra "
                         "electron is not bound by this functional's potential, and the ΔSCF EA rests on the "
-                        "finite radial box (r_max = 20 bohr)", jr.key, "electron_affinity"))
+                        "finite radial box (r_max = 20 bohr)", jr.key, "electron_affinity", eps * HARTREE_TO_EV))
     ea = jr.outputs.get("values", {}).get("electron_affinity")
     if ea is not None and ea < 0:
         out.append(Flag(jr.system, jr.functional, "negative EA",

@@ -159,10 +159,24 @@ def _flags_section(plan: ReportPlan, data: ReportData) -> Section:
     if plan.pairs_without_data:
         blocks.append("Bonded pairs in the structure with no experimental diatomic data in ks1d (not computed): "
                       + ", ".join(plan.pairs_without_data) + ".")
-    if data.flags:
+    unbound = [f for f in data.flags if f.kind == "unbound anion"]
+    others = [f for f in data.flags if f.kind != "unbound anion"]
+    if unbound:
+        body = []
+        for system in dict.fromkeys(f.system for f in unbound):
+            fs = [f for f in unbound if f.system == system]
+            eps = "; ".join(f"{f.functional} {f.value:+.2f} eV" for f in fs)
+            body.append((system, Cell(", ".join(f.functional for f in fs), link=f"job-{fs[0].job[:12]}"), eps))
+        blocks.append("Unbound anions: the anion's highest occupied eigenvalue is positive, so the extra "
+                      "electron is not bound by the functional's Kohn–Sham potential (the self-interaction "
+                      "failure of approximate functionals for anions). The ΔSCF EA is still computed, with the "
+                      "electron confined by the radial box (r_max = 20 bohr); it is flagged ⚑ in the EA table.")
+        blocks.append(Table(("system", "functionals", "anion ε_HOMO"), tuple(body),
+                            caption="positive anion eigenvalues per functional"))
+    if others:
         blocks.append(Table(("system", "functional", "flag", "detail"),
                             tuple((f.system, f.functional, Cell(f.kind, link=f"job-{f.job[:12]}"), f.text)
-                                  for f in data.flags), caption="⚑ in the tables points here"))
+                                  for f in others), caption="⚑ in the tables points here"))
     if not blocks:
         blocks.append("Nothing was skipped, failed or flagged.")
     return Section("Skipped, failed and flagged", "flags", tuple(blocks))

@@ -95,7 +95,8 @@ nav ol { columns: 2; }
 """
 
 
-_NUMERIC = re.compile(r"^[−+\-]?(\d|—$)")
+_NUMBER = r"[−+\-]?\d+(?:\.\d+)?"
+_NUMERIC = re.compile(rf"^(?:{_NUMBER}(?:\s*\({_NUMBER}\))?|—)$")
 
 
 def _e(text: str) -> str:

@@ -62,8 +62,9 @@ def _atom_energy(c, label: str, **kw) -> dict[str, Any]:
     except ConvergenceError:
         opts = dict(c.settings.get("atom_options") or {})
         opts["scf"] = dict(RETRY_SCF)
-        c.details.setdefault("retried_steps", []).append(label)
-        return c.energy(label, atom_options=opts, **kw)
+        summary = c.energy(label, atom_options=opts, **kw)
+        c.details.setdefault("retried_steps", []).append(label)  # only a retry that converged
+        return summary
 
 
 def _optional(c, label: str, **kw) -> dict[str, Any] | None:

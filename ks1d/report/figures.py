@@ -11,7 +11,7 @@ from __future__ import annotations
 import io
 from typing import Sequence
 
-from ..errors import InputError
+from ..sweep.plots import _pyplot
 from ..sweep.results import ResultRow, functionals_of, systems_of
 from ..sweep.tables import unit_text
 from .analysis import RankEntry
@@ -19,17 +19,6 @@ from .analysis import RankEntry
 #: Bar colours, one per functional (in order).  Tests look for them in a browser screenshot.
 PALETTE = ("#1b6ca8", "#d1495b", "#3f8f5a", "#e0a030", "#7d4e9a", "#4a5a6a", "#0f9aa0", "#b55d2a")
 DPI = 110
-
-
-def _pyplot():
-    try:
-        import matplotlib
-    except ImportError:  # pragma: no cover - matplotlib is a dependency
-        raise InputError("the report's plots need matplotlib: pip install matplotlib") from None
-    matplotlib.use("Agg", force=True)
-    import matplotlib.pyplot as plt
-
-    return plt
 
 
 def _png(fig) -> bytes:

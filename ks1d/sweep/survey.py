@@ -177,7 +177,6 @@ def diatomic_system(formula: str):
 def diatomic_survey(c) -> dict[str, float]:
     import numpy as np
 
-    from .curvefit import fit_curve
     from .properties import _diatomic_curve
     from .systems import System
 
@@ -185,11 +184,12 @@ def diatomic_survey(c) -> dict[str, float]:
     if not s.is_diatomic:
         raise InputError("diatomic_survey needs a diatomic molecule")
     values = _diatomic_curve(c)
+    # the fit of the last scan is E(R) − min E = Σ_j c_j (R − R̄)^j (ks1d.sweep.curvefit.fit_curve)
     scan = c.details["scans"][-1]
     r_b = np.asarray(scan["r_angstrom"]) * units.ANGSTROM_TO_BOHR
-    e = np.asarray(scan["energy"])
-    r_e, _k, coef = fit_curve(r_b, e)
-    e_min = float(e.min() + np.polynomial.Polynomial(coef)(r_e - r_b.mean()))
+    r_e = values["bond_length"] * units.ANGSTROM_TO_BOHR
+    fit = np.polynomial.Polynomial(c.details["fit_coefficients"])
+    e_min = float(min(scan["energy"]) + fit(r_e - r_b.mean()))
     atoms = 0.0
     for sym in s.symbols:
         atom = System(name=sym, kind="atom", symbol=sym)

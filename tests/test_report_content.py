@@ -192,3 +192,31 @@ def test_ranking_uses_the_common_set_and_leaves_out_thin_coverage():
     assert by["A"].score == pytest.approx(0.2) and by["B"].score == pytest.approx(0.2)
     assert by["C"].rank is None and "not ranked" in by["C"].note
     assert by["A"].mae["electron_affinity"] == (pytest.approx(0.9), 1)
+
+
+def test_a_stalled_density_residual_is_retried_and_flagged():
+    # r2SCAN Li stalls at a density residual of ~5e-6 with its energy converged (DEVELOPERS.md, known finding);
+    # the survey's one retry accepts a 1e-5 density tolerance and records the step.  Reference: pyscf UKS(Li)
+    # and RKS(Li+) with r2SCAN in the large even-tempered s basis (run now).
+    from pyscf import dft, gto
+
+    from ks1d.sweep.properties import run_property
+    from ks1d.sweep.systems import System
+    from pyscf_atoms import even_tempered
+
+    out = run_property("atom_survey", System(name="Li", kind="atom", symbol="Li"), "r2scan",
+                       {"precision": "normal", "atom_options": {"estimate_error": False}})
+    assert out["details"]["retried_steps"] == ["Li"]
+    basis = {"Li": [[0, [a, 1.0]] for a in even_tempered(0.01, 1e7, 1.6)]}
+    e = []
+    for charge, spin in ((0, 1), (1, 0)):
+        mf = (dft.UKS if spin else dft.RKS)(gto.M(atom="Li 0 0 0", basis=basis, charge=charge, spin=spin,
+                                                   verbose=0))
+        mf.xc = "r2scan"
+        mf.grids.atom_grid = (500, 50)
+        mf.grids.prune = None
+        mf.conv_tol = 1e-11
+        e.append(mf.kernel())
+    # 5e-3 eV: neutral Li with r2SCAN lies 9e-5 Ha below pyscf's converged value (Li+ agrees to 1e-10 Ha), the
+    # open-shell GGA/meta-GGA finding of DEVELOPERS.md; a wrong state or configuration would be off by >= 0.1 eV
+    assert out["values"]["ionisation_potential"] == pytest.approx((e[1] - e[0]) * units.HARTREE_TO_EV, abs=5e-3)

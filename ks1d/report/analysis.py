@@ -160,7 +160,8 @@ def _flags(jr: JobRow) -> list[Flag]:
                         _step_quantity(step["step"])))
     for step in d.get("retried_steps", []):
         out.append(Flag(jr.system, jr.functional, "SCF retried",
-                        f"{step}: converged only with the slower retry mixing", jr.key, _step_quantity(step)))
+                        f"{step}: converged only in the retry (slower mixing, density tolerance 1e-5)", jr.key,
+                        _step_quantity(step)))
     for w in d.get("warnings", []):
         out.append(Flag(jr.system, jr.functional, "warning", w, jr.key,
                         "basis_set_error" if jr.property == "basis_set_error" else None))

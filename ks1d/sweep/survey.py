@@ -49,8 +49,11 @@ from ..errors import CalculationError, InputError
 
 EV = units.HARTREE_TO_EV
 
-#: SCF settings of the one retry an atom gets when its SCF does not converge: slower, longer mixing.
-RETRY_SCF = {"mixing": 0.2, "history": 8, "max_iterations": 300}
+#: SCF settings of the one retry an atom gets when its SCF does not converge: slower, longer mixing and
+#: a density tolerance of 1e-5 electrons (∫|Δρ|), at which the energy from the output orbitals is still
+#: exact to second order (≲1e-9 Ha).  It catches SCFs whose energy has converged while the density
+#: residual stalls (r2SCAN for alkali atoms, see DEVELOPERS.md).
+RETRY_SCF = {"mixing": 0.2, "history": 8, "max_iterations": 300, "density_tol": 1e-5}
 
 
 def _atom_energy(c, label: str, **kw) -> dict[str, Any]:

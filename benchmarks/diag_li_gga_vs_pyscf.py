@@ -1,0 +1,94 @@
+"""Diagnose the Li (spin-polarized) GGA gap between ks1d and pyscf (DEVELOPERS.md, "Li with GGAs").
+
+Prints, for one functional (default PBE):
+
+1. ks1d's energy functional on pyscf's converged orbitals (their values placed on the FEM nodes: the
+   Lagrange basis coefficients are nodal values) against pyscf's own energy: do the codes evaluate
+   the same functional on the same density?
+2. ks1d's E_xc of its own density against an independent quadrature (4e5 log-spaced points,
+   finite-difference gradients, libxc called directly through pyscf.dft.libxc);
+3. pyscf's UKS energy in even-tempered s bases of decreasing ratio against ks1d's SCF energy.
+
+Usage:  python benchmarks/diag_li_gga_vs_pyscf.py [ks1d-xc pyscf-xc]     (default: pbe pbe,pbe)
+"""
+from __future__ import annotations
+
+import sys
+
+import numpy as np
+from pyscf import dft, gto
+from pyscf.dft import libxc
+
+import ks1d
+from ks1d.occupations import build_configuration
+from ks1d.radial.scf import PRECISION, AtomicProblem
+from ks1d.xc import resolve_functional
+
+
+def even_tempered(lo: float, hi: float, ratio: float) -> np.ndarray:
+    n = int(np.ceil(np.log(hi / lo) / np.log(ratio))) + 1
+    return lo * ratio ** np.arange(n)
+
+
+def pyscf_li(pxc: str, lo: float = 0.01, hi: float = 1e7, ratio: float = 1.6, grid=(500, 50)):
+    basis = {"Li": [[0, [a, 1.0]] for a in even_tempered(lo, hi, ratio)]}
+    mol = gto.M(atom="Li 0 0 0", basis=basis, spin=1, verbose=0)
+    mf = dft.UKS(mol)
+    mf.xc = pxc
+    mf.grids.atom_grid = grid
+    mf.grids.prune = None
+    mf.conv_tol = 1e-12
+    return mol, mf, mf.kernel()
+
+
+def ks1d_energy_of_pyscf_orbitals(xc: str, mol, mf) -> float:
+    prob = AtomicProblem(3, build_configuration(3, 0, "polarized"), resolve_functional(xc), PRECISION["normal"])
+    m, p = prob.mesh, prob.mesh.order
+    nodes = np.zeros(m.nel * p + 1)
+    for e in range(m.nel):
+        nodes[e * p:e * p + p + 1] = m.node_r[e]
+    rn = nodes[1:-1]
+    pts = np.zeros((rn.size, 3))
+    pts[:, 2] = rn
+    ao = mol.eval_gto("GTOval", pts)
+    orbitals = {}
+    for ch in prob.channels:
+        u = rn[:, None] * np.sqrt(4 * np.pi) * (ao @ mf.mo_coeff[ch.spin][:, :ch.count])
+        orbitals[(ch.spin, ch.l)] = (u * np.sign(u[0]), np.zeros(ch.count))
+    x, R = prob.state(orbitals, with_integrals=True)
+    dens, K, _ = prob.unpack(x)
+    return prob.energy(orbitals, dens, K, R)["total"]
+
+
+def independent_exc(res, pxc: str) -> float:
+    x = np.linspace(np.log(1e-7), np.log(0.998 * res.radial.mesh.r_max), 400001)
+    r = np.exp(x)
+    rho = res.radial.density_at(r)  # spins in sorted order: down, up
+    drho = np.gradient(rho, r, axis=1, edge_order=2)
+    zero = np.zeros_like(r)
+    up = np.array([rho[1], drho[1], zero, zero])
+    down = np.array([rho[0], drho[0], zero, zero])
+    exc = libxc.eval_xc(pxc, (up, down), spin=1, deriv=0)[0]
+    return float(np.sum(exc * (rho[0] + rho[1]) * 4 * np.pi * r**3 * (x[1] - x[0])))
+
+
+def main() -> None:
+    xc, pxc = (sys.argv[1], sys.argv[2]) if len(sys.argv) > 2 else ("pbe", "pbe,pbe")
+    res = ks1d.solve_atom("Li", xc=xc, estimate_error=False)
+    mol, mf, e_py = pyscf_li(pxc)
+    e_cross = ks1d_energy_of_pyscf_orbitals(xc, mol, mf)
+    print(f"Li {xc}: ks1d SCF {res.total_energy:.10f}  pyscf (ratio 1.6) {e_py:.10f}")
+    print(f"1. ks1d functional on pyscf's orbitals minus pyscf's energy: {(e_cross - e_py) * 1e6:+.3f} uHa")
+    exc_ind = independent_exc(res, pxc)
+    print(f"2. ks1d E_xc {res.components['exchange_correlation']:.10f}  independent quadrature {exc_ind:.10f}  "
+          f"diff {(res.components['exchange_correlation'] - exc_ind) * 1e9:+.2f} nHa")
+    print("3. pyscf above ks1d (uHa):")
+    for ratio in (1.6, 1.4, 1.25):
+        for grid in ((500, 50), (1500, 50)):
+            _, m2, e = pyscf_li(pxc, lo=0.005, hi=1e8, ratio=ratio, grid=grid)
+            print(f"   ratio {ratio:<4}  {m2.mol.nao:3d} functions  grid {grid[0]:4d}  "
+                  f"{(e - res.total_energy) * 1e6:+8.3f}")
+
+
+if __name__ == "__main__":
+    main()

@@ -147,6 +147,14 @@ def test_markdown_twin_has_the_same_tables(small_report):
         assert open(png, "rb").read(8) == b"\x89PNG\r\n\x1a\n"
 
 
+def test_json_twin_holds_the_same_values(small_report):
+    import json
+
+    d = json.load(open(small_report.paths["json"], encoding="utf-8"))
+    assert [v["value"] for v in d["values"]] == [r.value for r in small_report.data.rows]
+    assert [e["functional"] for e in d["ranking"]] == [e.functional for e in small_report.data.ranking]
+
+
 def test_a_second_report_reuses_the_store(small_report, tmp_path):
     again = functional_report(["H", "Li"], functionals=["lda", "pbe"], basis="def2-svp",
                               output=str(tmp_path / "again"), store=small_report.store, executor=InlineExecutor())

@@ -32,7 +32,7 @@ def register(subparsers) -> None:
                    "basis-set errors, and the diatomics use it (default for diatomics: def2-tzvp)")
     p.add_argument("--no-diatomics", action="store_true", help="leave out the diatomic molecules")
     p.add_argument("--output", "-o", default="ks1d-report", metavar="PATH",
-                   help="output stem: writes PATH.html, PATH.md and PATH_plots/ (default: ks1d-report)")
+                   help="output stem: writes PATH.html, PATH.md, PATH.json and PATH_plots/ (default: ks1d-report)")
     p.add_argument("--store", metavar="FILE", help="sweep store to keep and reuse results (default: PATH.sqlite)")
     p.add_argument("--workers", type=int, default=None, metavar="N",
                    help="worker processes (default: one per core; 0 runs in this process)")
@@ -83,5 +83,6 @@ def _summary(out) -> str:
         lines.append(f"{len(out.data.flags)} flags (unbound anions, failed steps): see the report")
     lines.append(f"HTML:     {out.paths['html']}")
     lines.append(f"Markdown: {out.paths['markdown']}")
+    lines.append(f"JSON:     {out.paths['json']}")
     lines.append(f"store:    {out.store}")
     return "\n".join(lines)

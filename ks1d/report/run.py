@@ -3,6 +3,7 @@ from __future__ import annotations
 
 import datetime
 import hashlib
+import json
 import os
 import time
 from dataclasses import dataclass
@@ -68,7 +69,7 @@ def functional_report(elements: Sequence[str] = (), structure: str | None = None
                       output: str = "ks1d-report", store: str | None = None, executor=None,
                       diatomics: bool = True, progress: bool = False, stream: TextIO | None = None,
                       retry_failed: bool = False) -> ReportOutcome:
-    """Compute (or reuse from ``store``) the battery and write ``<output>.html`` and ``<output>.md``.
+    """Compute (or reuse from ``store``) the battery; write ``<output>.html``, ``<output>.md``, ``<output>.json``.
 
     The input is checked completely before any calculation starts.  Jobs
     already finished in the store are reused; each new result is stored as
@@ -109,7 +110,11 @@ def functional_report(elements: Sequence[str] = (), structure: str | None = None
     doc = build_document(plan, data, meta, store_path, name)
     paths = write(doc, html_path, md_path)
     paths["store"] = store_path
-    return ReportOutcome(plan=plan, data=data, paths=paths, store=store_path, sweep=name,
-                         jobs_total=summary.total, jobs_reused=summary.skipped, jobs_run=summary.ran,
-                         jobs_failed=sum(1 for r in rows if r.status == "failed"),
-                         seconds=time.perf_counter() - t0)
+    paths["json"] = os.path.splitext(html_path)[0] + ".json"
+    outcome = ReportOutcome(plan=plan, data=data, paths=paths, store=store_path, sweep=name,
+                            jobs_total=summary.total, jobs_reused=summary.skipped, jobs_run=summary.ran,
+                            jobs_failed=sum(1 for r in rows if r.status == "failed"),
+                            seconds=time.perf_counter() - t0)
+    with open(paths["json"], "w", encoding="utf-8") as fh:  # the machine-readable twin, for scripts
+        json.dump(outcome.to_dict(), fh, indent=1)
+    return outcome

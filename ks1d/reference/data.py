@@ -74,6 +74,8 @@ QUANTITIES: dict[str, Quantity] = {
                  "experimental electron affinity of the neutral atom (bound anions only)"),
         Quantity("sd_promotion_energy", "eV", "element",
                  "experimental E(3d^(n+1) 4s^1) - E(3d^n 4s^2), J-averaged lowest terms"),
+        Quantity("sp_promotion_energy", "eV", "element",
+                 "experimental E(ns^1 np^(k+1)) - E(ns^2 np^k) of a p-block atom, J-averaged high-spin terms"),
         Quantity("diatomic_bond_length", "angstrom", "molecule",
                  "experimental equilibrium bond length r_e of the ground electronic state"),
         Quantity("diatomic_harmonic_frequency", "cm^-1", "molecule",

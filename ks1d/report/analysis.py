@@ -6,7 +6,7 @@ over the energy comparisons of the battery, all in eV:
     score(F) = (1/N) Σ_i |E_i(F) − E_i(exp)|,   i ∈ common set
 
 over ionisation potentials, electron affinities (elements with a bound
-anion only), s→d promotion energies and diatomic D_0 — the comparisons
+anion only), s→d and s→p promotion energies and diatomic D_0 — the comparisons
 that every ranked functional completed (a comparison one of them lacks is
 dropped for all, so each is scored on the same questions).  A functional
 with fewer than three quarters of the comparisons of the best-covered one (HSE06-type
@@ -24,7 +24,7 @@ from ..sweep.results import FailureRow, ResultRow, collect
 from ..sweep.store import JobRow
 
 #: Quantities pooled into the ranking score (all in eV).
-RANKED = ("ionisation_potential", "electron_affinity", "sd_promotion", "dissociation_energy")
+RANKED = ("ionisation_potential", "electron_affinity", "sd_promotion", "sp_promotion", "dissociation_energy")
 #: Shown beside the score: MAE of these per functional.
 SIDE = ("homo_vs_ip", "bond_length", "harmonic_frequency")
 
@@ -50,8 +50,10 @@ def _step_quantity(label: str) -> str | None:
         return "electron_affinity"
     if label.endswith(" spin-restricted"):
         return "spin_polarization_energy"
-    if "]" in label:  # an explicit configuration: the s->d promotion
+    if " s→d " in label:
         return "sd_promotion"
+    if " s→p " in label:
+        return "sp_promotion"
     return None
 
 

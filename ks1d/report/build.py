@@ -14,6 +14,7 @@ TITLES = {
     "ionisation_potential": "Ionisation potentials",
     "electron_affinity": "Electron affinities",
     "sd_promotion": "s→d promotion energies",
+    "sp_promotion": "s→p promotion energies",
     "homo_vs_ip": "−ε_HOMO against the experimental IP",
     "spin_polarization_energy": "Spin-polarization energies",
     "basis_set_error": "Basis-set error of the planned basis",
@@ -21,10 +22,10 @@ TITLES = {
     "harmonic_frequency": "Diatomic harmonic frequencies ω_e",
     "dissociation_energy": "Diatomic dissociation energies D_0",
 }
-SHORT = {"ionisation_potential": "IP", "electron_affinity": "EA", "sd_promotion": "s→d",
+SHORT = {"ionisation_potential": "IP", "electron_affinity": "EA", "sd_promotion": "s→d", "sp_promotion": "s→p",
          "dissociation_energy": "D_0", "homo_vs_ip": "−ε_HOMO − IP", "bond_length": "r_e",
          "harmonic_frequency": "ω_e"}
-UNITS = {"ionisation_potential": "eV", "electron_affinity": "eV", "sd_promotion": "eV",
+UNITS = {"ionisation_potential": "eV", "electron_affinity": "eV", "sd_promotion": "eV", "sp_promotion": "eV",
          "dissociation_energy": "eV", "homo_vs_ip": "eV", "bond_length": "angstrom", "harmonic_frequency": "cm^-1"}
 
 EXPLAIN = {
@@ -35,6 +36,9 @@ EXPLAIN = {
                          "in experiment are not compared. ⚑ marks values with a caveat (see Flags).",
     "sd_promotion": "E(dⁿ⁺¹s¹) − E(dⁿs²), both configurations spherically averaged and high spin. Experiment: "
                     "J-averaged values of Raghavachari & Trucks (1989) from Moore's tables (from memory).",
+    "sp_promotion": "E(ns¹npᵏ⁺¹) − E(ns²npᵏ), both configurations spherically averaged and high spin (for B, C, "
+                    "N and Si single terms: ²P→⁴P, ³P→⁵S, ⁴S→⁴P, ³P→⁵S). Experiment: J-averaged term energies of the "
+                    "NIST Atomic Spectra Database (from memory).",
     "homo_vs_ip": "For the exact functional −ε_HOMO equals the IP (ionisation-potential theorem); the gap "
                   "(−ε_HOMO − IP, typically −3 to −6 eV for semilocal functionals) measures the self-interaction "
                   "error of the potential. Not part of the ranking.",
@@ -99,7 +103,7 @@ def _quantity_table(data: ReportData, q: str, systems: Sequence[str], funcs: Seq
         cells = []
         for f in funcs:
             r = next((r for r in srows if r.functional == f), None)
-            c = _cell(r, flagged, signed_value=q == "sd_promotion")
+            c = _cell(r, flagged, signed_value=q in ("sd_promotion", "sp_promotion"))
             if r is not None and best is not None and r.error is not None and abs(r.error) == best and len(funcs) > 1:
                 c = Cell(c.text, c.link, c.title, c.mark or "best")
             cells.append(c)
@@ -213,7 +217,7 @@ def build_document(plan: ReportPlan, data: ReportData, meta: Sequence[tuple[str,
     flagged = {(f.system, f.functional, f.quantity) for f in data.flags if f.kind != "SCF retried" and f.quantity}
     funcs = list(plan.functionals)
     sections = [_ranking_section(plan, data)]
-    atom_qs = ("ionisation_potential", "electron_affinity", "sd_promotion", "homo_vs_ip",
+    atom_qs = ("ionisation_potential", "electron_affinity", "sd_promotion", "sp_promotion", "homo_vs_ip",
                "spin_polarization_energy", "basis_set_error")
     for q in atom_qs + ("bond_length", "harmonic_frequency", "dissociation_energy"):
         systems = list(plan.elements) if q in atom_qs else list(plan.diatomics)

@@ -262,6 +262,7 @@ UNITS: dict[str, str] = {
     "harmonic_frequency": "cm^-1",
     "spin_splitting": "eV",
     "sd_promotion": "eV",
+    "sp_promotion": "eV",
     "homo_vs_ip": "eV",
     "spin_polarization_energy": "eV",
     "basis_set_error": "mhartree",
@@ -354,6 +355,9 @@ def reference_for(quantity: str, system: System, functional: str | None = None,
     elif quantity == "sd_promotion":
         if neutral_atom:
             ref = _from_loader("sd_promotion_energy", system.symbol, quantity)
+    elif quantity == "sp_promotion":
+        if neutral_atom:
+            ref = _from_loader("sp_promotion_energy", system.symbol, quantity)
     elif quantity == "total_energy":
         if neutral_atom and functional and settings.get("atoms", "radial") == "radial":
             ref = _total_energy_reference(system.symbol, functional, settings.get("spin", "polarized"))

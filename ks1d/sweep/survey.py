@@ -18,6 +18,8 @@ the calculations behind it.
   - spin-polarization energy E_restricted(X) − E_polarized(X), zero for
     closed shells                                                (eV)
   - s→d promotion E(dⁿ⁺¹s¹) − E(dⁿs²) for transition metals      (eV)
+  - s→p promotion E(ns¹npᵏ⁺¹) − E(ns²npᵏ) for p-block atoms with
+    k = 1–4, both high spin (for B, C, N, Si single terms: ⁴P, ⁵S, ⁴P, ⁵S)  (eV)
 
   An anion whose highest occupied eigenvalue is positive has its extra
   electron unbound by the functional's Kohn–Sham potential (the classic
@@ -86,6 +88,7 @@ def _is_closed_shell(symbol: str) -> bool:
 
 
 def atom_survey(c) -> dict[str, float]:
+    from .. import elements
     from .properties import sd_configurations
 
     s = c.system
@@ -113,17 +116,41 @@ def atom_survey(c) -> dict[str, float]:
         restricted = _optional(c, f"{sym} spin-restricted", spin="restricted")
         if restricted is not None:
             values["spin_polarization_energy"] = (restricted["total_energy"] - e0) * EV
-    try:
-        a, b = sd_configurations(sym)
-    except InputError:
-        a = b = None
-    if a is not None:
-        ea = _optional(c, f"{sym} {a}", config=a)
-        eb = _optional(c, f"{sym} {b}", config=b)
-        c.details.update({"sd_from": a, "sd_to": b})
+    ground = elements.element(sym).ground_configuration
+    for quantity, configurations, tag in (("sd_promotion", sd_configurations, "s→d"),
+                                          ("sp_promotion", sp_configurations, "s→p")):
+        try:
+            a, b = configurations(sym)
+        except InputError:
+            continue
+        # the lower configuration is usually the ground one, already solved as the neutral atom
+        ea = neutral if a.split() == ground.split() else _optional(c, f"{sym} {tag} from {a}", config=a)
+        eb = _optional(c, f"{sym} {tag} to {b}", config=b)
+        c.details.update({f"{quantity}_from": a, f"{quantity}_to": b})
         if ea is not None and eb is not None:
-            values["sd_promotion"] = (eb["total_energy"] - ea["total_energy"]) * EV
+            values[quantity] = (eb["total_energy"] - ea["total_energy"]) * EV
     return values
+
+
+def sp_configurations(symbol: str) -> tuple[str, str]:
+    """(ns² npᵏ, ns¹ npᵏ⁺¹) configurations of a p-block atom with 1 ≤ k ≤ 4, from its ground configuration."""
+    from .. import elements
+
+    ground = elements.element(symbol).ground_configuration
+    core, _, rest = ground.partition("] ")
+    toks = (rest if ground.startswith("[") else ground).split()
+    if len(toks) < 2:
+        raise InputError(f"{symbol} has no open p shell")
+    s_tok, p_tok = toks[-2], toks[-1]
+    n = s_tok[:-2] if s_tok.endswith("s2") else None
+    if n is None or not n.isdigit() or not p_tok.startswith(f"{n}p"):
+        raise InputError(f"{symbol}: s→p promotion needs a ground configuration ending in ns2 npk")
+    k = int(p_tok[len(n) + 1:] or 1)
+    if not 1 <= k <= 4:
+        raise InputError(f"{symbol}: s→p promotion needs 1-4 p electrons")
+    head = (core + "] " if ground.startswith("[") else "") + " ".join(toks[:-2])
+    head = head.rstrip() + " " if head.strip() else ""
+    return f"{head}{n}s2 {n}p{k}", f"{head}{n}s1 {n}p{k + 1}"
 
 
 def basis_set_error(c) -> dict[str, float]:

@@ -32,6 +32,7 @@ QUANTITY_TITLES = {
     "harmonic_frequency": "Harmonic frequency ω_e",
     "spin_splitting": "Spin-state splitting",
     "sd_promotion": "s→d promotion energy E(dⁿ⁺¹s¹) − E(dⁿs²)",
+    "sp_promotion": "s→p promotion energy E(ns¹npᵏ⁺¹) − E(ns²npᵏ)",
     "homo_vs_ip": "−ε_HOMO against the experimental IP",
     "spin_polarization_energy": "Spin-polarization energy E_restricted − E_polarized",
     "basis_set_error": "Basis-set error E(basis) − E(radial limit)",

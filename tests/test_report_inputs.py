@@ -124,3 +124,12 @@ def test_cli_exits_2_before_computing(tmp_path, args, fragment):
     assert fragment in r.stderr
     assert "Traceback" not in r.stderr
     assert not os.listdir(tmp_path)  # no store, no page: nothing was started
+
+
+def test_symmetry_broken_basis_is_checked_and_keyed():
+    plan = plan_report(["O"], functionals=["pbe"], symmetry_broken="aug-cc-pvtz", diatomics=False)
+    (job,) = plan.jobs
+    assert job.settings_dict["symmetry_broken_basis"] == "aug-cc-pvtz"
+    assert job.key != plan_report(["O"], functionals=["pbe"], diatomics=False).jobs[0].key
+    with pytest.raises(BasisError, match="unknown basis"):
+        plan_report(["O"], symmetry_broken="def2-nonsense")

@@ -16,7 +16,7 @@ _STRUCTURE_SUFFIXES = (".xyz", ".extxyz", ".exyz")
 
 
 def register(subparsers) -> None:
-    from ..report.plan import DEFAULT_FUNCTIONALS
+    from ..report.plan import DEFAULT_FUNCTIONALS, SYMMETRY_BROKEN_BASIS
 
     p = subparsers.add_parser(
         "report", help="functional sanity report (HTML + Markdown) for a set of elements",
@@ -31,6 +31,12 @@ def register(subparsers) -> None:
     p.add_argument("--basis", metavar="NAME", help="the Gaussian basis planned for the big run: adds its "
                    "basis-set errors, and the diatomics use it (default for diatomics: def2-tzvp)")
     p.add_argument("--no-diatomics", action="store_true", help="leave out the diatomic molecules")
+    p.add_argument("--symmetry-broken", action="store_true",
+                   help="IPs and EAs of integer-occupation (symmetry-broken) atoms, as production codes get them: "
+                        "the spherical basis-set limit plus the symmetry-breaking energy in a Gaussian basis; "
+                        "slower, most for open 3d shells")
+    p.add_argument("--symmetry-basis", default=SYMMETRY_BROKEN_BASIS, metavar="NAME",
+                   help=f"basis of that correction (default {SYMMETRY_BROKEN_BASIS})")
     p.add_argument("--output", "-o", default="ks1d-report", metavar="PATH",
                    help="output stem: writes PATH.html, PATH.md, PATH.json and PATH_plots/ (default: ks1d-report)")
     p.add_argument("--store", metavar="FILE", help="sweep store to keep and reuse results (default: PATH.sqlite)")
@@ -64,7 +70,8 @@ def _report(args) -> int:
                             basis=args.basis, output=args.output, store=args.store,
                             executor=make_executor(workers=args.workers), diatomics=not args.no_diatomics,
                             progress=not args.quiet and not args.json, stream=sys.stderr,
-                            retry_failed=args.retry_failed)
+                            retry_failed=args.retry_failed,
+                            symmetry_broken=args.symmetry_basis if args.symmetry_broken else None)
     if args.json:
         print(json.dumps(out.to_dict(), indent=1))
     else:

@@ -147,7 +147,12 @@ def _ranking_section(plan: ReportPlan, data: ReportData) -> Section:
                   "of the best-covered one are listed but not ranked. −ε_HOMO, spin polarization, r_e, ω_e and "
                   "basis-set errors are not part of the score.")
     blocks.append("Caveats:")
-    blocks.append(Bullets(CAVEATS))
+    caveats = CAVEATS if not plan.symmetry_broken else tuple(
+        c if not c.startswith("Spherical versus symmetry-broken") else
+        (f"Symmetry breaking: IPs and EAs here refer to integer-occupation atoms (correction computed in "
+         f"{plan.symmetry_broken}); s→d, s→p, −ε_HOMO and spin polarization still refer to spherical atoms.")
+        for c in CAVEATS)
+    blocks.append(Bullets(caveats))
     png = figures.ranking_figure(data.ranking)
     if png:
         blocks.append(Figure("ranking", "Pooled MAE against experiment per ranked functional (eV)", png))
@@ -225,7 +230,12 @@ def build_document(plan: ReportPlan, data: ReportData, meta: Sequence[tuple[str,
         t = _quantity_table(data, q, systems, funcs, flagged, extra)
         if t is None:
             continue
-        blocks: list = [EXPLAIN[q], t]
+        explain = EXPLAIN[q]
+        if plan.symmetry_broken and q in ("ionisation_potential", "electron_affinity"):
+            explain += (f" Here for integer-occupation (symmetry-broken) atoms: each spherical radial energy plus "
+                        f"the symmetry-breaking energy E(integer) − E(spherical) of the same species in "
+                        f"{plan.symmetry_broken}.")
+        blocks: list = [explain, t]
         rows = [r for r in data.rows if r.quantity == q]
         use_err = any(r.error is not None for r in rows)
         png = figures.grouped_bars(rows, TITLES[q], use_errors=use_err)

@@ -29,6 +29,8 @@ from .structure import Structure, read_structure
 DEFAULT_FUNCTIONALS = ("lda", "pbe", "pbesol", "r2scan", "pbe0", "hse06", "b3lyp")
 #: Basis of the diatomic scans when no basis is planned (triple-zeta with polarization: common practice).
 DEFAULT_DIATOMIC_BASIS = "def2-tzvp"
+#: Basis of the symmetry-breaking correction when asked for without a name (diffuse functions for anions).
+SYMMETRY_BROKEN_BASIS = "aug-cc-pvtz"
 
 ATOM_SETTINGS = {"precision": "normal", "atom_options": {"estimate_error": False}}
 SCAN = {"scan_points": 7, "scan_step": 0.02}
@@ -57,6 +59,7 @@ class ReportPlan:
     structure_path: str | None
     skipped: tuple[Skip, ...]
     jobs: tuple[Job, ...]
+    symmetry_broken: str | None = None  # basis of the integer-occupation correction of IPs and EAs
 
     @property
     def title(self) -> str:
@@ -106,8 +109,12 @@ def _pair_label(a: str, b: str) -> str:
 
 def plan_report(elements: Sequence[str] = (), structure: str | Structure | None = None,
                 functionals: Sequence[str] | None = None, basis: str | None = None,
-                diatomics: bool = True) -> ReportPlan:
-    """Validate the request and list its jobs (no calculation runs here)."""
+                diatomics: bool = True, symmetry_broken: str | None = None) -> ReportPlan:
+    """Validate the request and list its jobs (no calculation runs here).
+
+    ``symmetry_broken`` names a Gaussian basis (e.g. ``SYMMETRY_BROKEN_BASIS``): IPs and EAs then refer to
+    integer-occupation atoms (see :func:`ks1d.sweep.survey._symmetry_broken`) instead of spherical ones.
+    """
     from ..sweep.datasets import diatomic_names
     from ..sweep.survey import diatomic_system
     from ..xc import resolve_functional
@@ -131,6 +138,10 @@ def plan_report(elements: Sequence[str] = (), structure: str | Structure | None 
             raise InputError("the basis name is empty")
         _check_basis(basis, symbols)
 
+    if symmetry_broken is not None:
+        symmetry_broken = str(symmetry_broken).strip()
+        _check_basis(symmetry_broken, symbols)
+
     known = set(diatomic_names())
     with_data: list[str] = []
     without: list[str] = []
@@ -148,7 +159,8 @@ def plan_report(elements: Sequence[str] = (), structure: str | Structure | None 
 
     jobs: list[Job] = []
     skipped: list[Skip] = []
-    atom_settings = freeze_settings(ATOM_SETTINGS)
+    atom_settings = freeze_settings(ATOM_SETTINGS if symmetry_broken is None else
+                                    {**ATOM_SETTINGS, "symmetry_broken_basis": symmetry_broken})
     for xc in xcs:
         func = resolve_functional(xc)
         radial_ok = not func.is_range_separated
@@ -170,4 +182,5 @@ def plan_report(elements: Sequence[str] = (), structure: str | Structure | None 
                             settings=freeze_settings({"basis": diatomic_basis, **SCAN})))
     return ReportPlan(elements=tuple(symbols), functionals=xcs, basis=basis, diatomic_basis=diatomic_basis,
                       diatomics=tuple(with_data), pairs_without_data=tuple(without), source=source,
-                      structure_path=None if st is None else st.path, skipped=tuple(skipped), jobs=tuple(jobs))
+                      structure_path=None if st is None else st.path, skipped=tuple(skipped), jobs=tuple(jobs),
+                      symmetry_broken=symmetry_broken)

@@ -68,7 +68,7 @@ def functional_report(elements: Sequence[str] = (), structure: str | None = None
                       functionals: Sequence[str] | None = None, basis: str | None = None,
                       output: str = "ks1d-report", store: str | None = None, executor=None,
                       diatomics: bool = True, progress: bool = False, stream: TextIO | None = None,
-                      retry_failed: bool = False) -> ReportOutcome:
+                      retry_failed: bool = False, symmetry_broken: str | None = None) -> ReportOutcome:
     """Compute (or reuse from ``store``) the battery; write ``<output>.html``, ``<output>.md``, ``<output>.json``.
 
     The input is checked completely before any calculation starts.  Jobs
@@ -81,7 +81,7 @@ def functional_report(elements: Sequence[str] = (), structure: str | None = None
 
     t0 = time.perf_counter()
     plan = plan_report(elements=elements, structure=structure, functionals=functionals, basis=basis,
-                       diatomics=diatomics)
+                       diatomics=diatomics, symmetry_broken=symmetry_broken)
     html_path, md_path = _check_output(output)
     store_path = store or os.path.splitext(html_path)[0] + ".sqlite"
     name = sweep_name(plan)
@@ -101,7 +101,10 @@ def functional_report(elements: Sequence[str] = (), structure: str | None = None
         ("planned basis", plan.basis or "none given (no basis-set errors)"),
         ("diatomics", (f"{', '.join(plan.diatomics)} in {plan.diatomic_basis}" if plan.diatomics
                        else "none (no element pair with experimental diatomic data)")),
-        ("atoms", "radial solver, basis-set limit, spin-polarized spherical atoms, non-relativistic"),
+        ("atoms", "radial solver, basis-set limit, spin-polarized spherical atoms, non-relativistic"
+                  + ("" if plan.symmetry_broken is None else
+                     f"; IPs and EAs of integer-occupation (symmetry-broken) atoms: the spherical limit plus "
+                     f"the symmetry-breaking energy in {plan.symmetry_broken}")),
         ("units", "eV for energies unless stated, Å for lengths, cm⁻¹ for frequencies, mHa for basis-set errors"),
         ("jobs", f"{summary.total} ({summary.skipped} reused from the store, {summary.ran} computed now, "
                  f"{sum(1 for r in rows if r.status == 'failed')} failed)"),

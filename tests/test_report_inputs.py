@@ -133,3 +133,11 @@ def test_symmetry_broken_basis_is_checked_and_keyed():
     assert job.key != plan_report(["O"], functionals=["pbe"], diatomics=False).jobs[0].key
     with pytest.raises(BasisError, match="unknown basis"):
         plan_report(["O"], symmetry_broken="def2-nonsense")
+
+
+def test_range_separated_hybrids_get_gaussian_atoms_and_no_rank_slot():
+    plan = plan_report(["O"], functionals=["pbe", "hse06"], diatomics=False)
+    kinds = {(j.property, j.functional): j.settings_dict for j in plan.jobs}
+    assert ("atom_survey", "pbe") in kinds and ("atom_survey_basis", "hse06") in kinds
+    assert kinds[("atom_survey_basis", "hse06")] == {"basis": "aug-cc-pvtz"}
+    assert any("Gaussian atoms" in s.reason for s in plan.skipped if s.functional == "hse06")

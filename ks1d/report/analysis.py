@@ -9,8 +9,9 @@ over ionisation potentials, electron affinities (elements with a bound
 anion only), s→d and s→p promotion energies and diatomic D_0 — the comparisons
 that every ranked functional completed (a comparison one of them lacks is
 dropped for all, so each is scored on the same questions).  A functional
-with fewer than three quarters of the comparisons of the best-covered one (HSE06-type
-functionals, which have no radial atoms) is listed but not ranked.
+with fewer than three quarters of the comparisons of the best-covered one is
+listed but not ranked, and so is one whose atoms come from Gaussian-basis
+jobs (HSE06-type functionals, which have no radial atoms).
 −ε_HOMO, spin-polarization energies, bond lengths, frequencies and
 basis-set errors are shown beside the ranking but are not part of it.
 """
@@ -105,14 +106,19 @@ def _mae(errors: Sequence[float]) -> float:
     return sum(abs(e) for e in errors) / len(errors)
 
 
-def rank_functionals(rows: Sequence[ResultRow], functionals: Sequence[str]):
-    """(ranking entries, common set, dropped comparisons) — see the module docstring."""
+def rank_functionals(rows: Sequence[ResultRow], functionals: Sequence[str], unranked: dict[str, str] | None = None):
+    """(ranking entries, common set, dropped comparisons) — see the module docstring.
+
+    ``unranked`` maps functionals that are listed but never ranked to the reason (their atoms come from
+    another solver).
+    """
+    unranked = unranked or {}
     comp: dict[str, dict[tuple[str, str], float]] = {f: {} for f in functionals}
     for r in rows:
         if r.quantity in RANKED and r.error is not None and r.functional in comp:
             comp[r.functional][(r.quantity, r.system)] = r.error
-    best = max((len(c) for c in comp.values()), default=0)
-    ranked = [f for f in functionals if best and len(comp[f]) >= 0.75 * best]
+    best = max((len(c) for f, c in comp.items() if f not in unranked), default=0)
+    ranked = [f for f in functionals if f not in unranked and best and len(comp[f]) >= 0.75 * best]
     common: set[tuple[str, str]] = set.intersection(*(set(comp[f]) for f in ranked)) if ranked else set()
     every = set().union(*comp.values()) if comp else set()
     entries = []
@@ -126,7 +132,7 @@ def rank_functionals(rows: Sequence[ResultRow], functionals: Sequence[str]):
             score = _mae([comp[f][k] for k in common])
             entries.append(RankEntry(f, score, len(common), per_q, None))
         else:
-            why = ("no comparisons with experiment" if not comp[f] else
+            why = (unranked[f] if f in unranked else "no comparisons with experiment" if not comp[f] else
                    f"only {len(comp[f])} of the {best} comparisons the best-covered functional has")
             entries.append(RankEntry(f, None, len(comp[f]), per_q, None, note=f"not ranked: {why}"))
     order = sorted((e for e in entries if e.score is not None), key=lambda e: e.score)
@@ -146,6 +152,11 @@ def _flags(jr: JobRow) -> list[Flag]:
     if not jr.outputs:
         return out
     d = jr.outputs.get("details", {})
+    if jr.property == "atom_survey_basis":
+        for q in ("ionisation_potential", "electron_affinity", "homo_vs_ip"):
+            out.append(Flag(jr.system, jr.functional, "Gaussian atoms",
+                            f"{d.get('atoms', 'Gaussian atoms')}: no radial range separation, so not at the "
+                            "basis-set limit and not spherical", jr.key, q))
     if d.get("anion_unbound_orbital"):
         eps = d.get("anion_homo_energy")
         out.append(Flag(jr.system, jr.functional, "unbound anion",
@@ -171,7 +182,11 @@ def _flags(jr: JobRow) -> list[Flag]:
 
 
 def analyse(job_rows: Sequence[JobRow], functionals: Sequence[str], elements: Sequence[str]) -> ReportData:
-    """Collect the stored rows of one report into :class:`ReportData`."""
+    """Collect the stored rows of one report into :class:`ReportData`.
+
+    Functionals whose atoms come from Gaussian-basis jobs (``atom_survey_basis``) are listed beside the
+    ranking, not in it: their atoms are integer-occupation atoms in a finite basis, the others' are not.
+    """
     from ..reference.data import has_stable_anion
 
     job_rows = list(job_rows)
@@ -183,7 +198,10 @@ def analyse(job_rows: Sequence[JobRow], functionals: Sequence[str], elements: Se
         calcs = tuple((jr.outputs or {}).get("calculations", ()))
         infos.append(JobInfo(jr.key, jr.system, jr.property, jr.functional, jr.status, jr.seconds, calcs,
                              None if jr.status != "failed" else f"{jr.error_type}: {jr.error}"))
-    ranking, common, dropped = rank_functionals(rows, functionals)
+    unranked = {jr.functional: (f"atoms from Gaussian jobs ({(jr.settings or {}).get('basis')}, integer "
+                                "occupations), not the basis-set limit: compare its MAE columns")
+                for jr in job_rows if jr.property == "atom_survey_basis"}
+    ranking, common, dropped = rank_functionals(rows, functionals, unranked)
     statements = {}
     for el in elements:
         stable = has_stable_anion(el)

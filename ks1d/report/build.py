@@ -169,7 +169,9 @@ def _flags_section(plan: ReportPlan, data: ReportData) -> Section:
         blocks.append("Bonded pairs in the structure with no experimental diatomic data in ks1d (not computed): "
                       + ", ".join(plan.pairs_without_data) + ".")
     unbound = [f for f in data.flags if f.kind == "unbound anion"]
-    others = [f for f in data.flags if f.kind != "unbound anion"]
+    # one row per distinct flag (a flag that concerns several quantities of a job is listed once)
+    others = list({(f.system, f.functional, f.kind, f.text): f for f in data.flags
+                   if f.kind != "unbound anion"}.values())
     if unbound:
         body = []
         for system in dict.fromkeys(f.system for f in unbound):

@@ -12,8 +12,10 @@ every pair of an element list) and functional: a ``diatomic_survey`` job in
 the planned basis (``DEFAULT_DIATOMIC_BASIS`` when none is planned).
 
 What a solver cannot do is skipped with a note: the radial solver has no
-range-separated hybrids, so HSE06-type functionals get no atomic battery
-(their diatomics still run in the Gaussian basis).
+range-separated hybrids, so HSE06-type functionals get their IP, EA and
+−ε_HOMO from Gaussian atoms with integer occupations (``atom_survey_basis``
+in ``SYMMETRY_BROKEN_BASIS``), no spin-polarization or promotion energies,
+and are shown beside the ranking rather than in it.
 """
 from __future__ import annotations
 
@@ -161,15 +163,28 @@ def plan_report(elements: Sequence[str] = (), structure: str | Structure | None 
     skipped: list[Skip] = []
     atom_settings = freeze_settings(ATOM_SETTINGS if symmetry_broken is None else
                                     {**ATOM_SETTINGS, "symmetry_broken_basis": symmetry_broken})
+    gaussian_atoms = symmetry_broken or SYMMETRY_BROKEN_BASIS
+    gaussian_atoms_ok = True
+    if any(resolve_functional(xc).is_range_separated for xc in xcs):
+        try:
+            _check_basis(gaussian_atoms, symbols)
+        except InputError:
+            gaussian_atoms_ok = False
     for xc in xcs:
         func = resolve_functional(xc)
         radial_ok = not func.is_range_separated
         if not radial_ok:
-            reason = ("the radial solver has no range-separated exact exchange yet, so there are no "
-                      "basis-set-limit atoms for this functional")
-            skipped.append(Skip(xc, "atomic battery (IP, EA, −ε_HOMO, spin polarization, s→d)", reason))
+            reason = "the radial solver has no range-separated exact exchange yet"
+            if gaussian_atoms_ok:
+                skipped.append(Skip(xc, "IP, EA and −ε_HOMO at the basis-set limit",
+                                    f"{reason}: they come from Gaussian atoms in {gaussian_atoms} with integer "
+                                    "occupations instead, and the functional is not ranked with the others"))
+                skipped.append(Skip(xc, "spin polarization, s→d and s→p promotion", reason))
+            else:
+                skipped.append(Skip(xc, "atomic battery (IP, EA, −ε_HOMO, spin polarization, s→d, s→p)",
+                                    f"{reason}, and {gaussian_atoms} lacks an element for Gaussian atoms"))
             if basis is not None:
-                skipped.append(Skip(xc, "basis-set error", reason))
+                skipped.append(Skip(xc, "basis-set error", f"{reason} (no basis-set-limit atoms)"))
         for sym in symbols:
             system = System(name=sym, kind="atom", symbol=sym, source="element symbol")
             if radial_ok:
@@ -177,6 +192,9 @@ def plan_report(elements: Sequence[str] = (), structure: str | Structure | None 
                 if basis is not None:
                     jobs.append(Job(system=system, property="basis_set_error", functional=xc,
                                     settings=freeze_settings({"basis": basis, "precision": "normal"})))
+            elif gaussian_atoms_ok:
+                jobs.append(Job(system=system, property="atom_survey_basis", functional=xc,
+                                settings=freeze_settings({"basis": gaussian_atoms})))
         for f in with_data:
             jobs.append(Job(system=diatomic_system(f), property="diatomic_survey", functional=xc,
                             settings=freeze_settings({"basis": diatomic_basis, **SCAN})))

@@ -12,7 +12,8 @@ from .store import Store
 
 #: Rough relative cost of a job kind (seconds per job in the example sweep, def2-TZVP molecules,
 #: two workers), used to start expensive jobs first and to weigh the progress ETA.
-_COST = {"diatomic_survey": 24.0, "basis_set_error": 2.0, "atom_survey": 3.0, "diatomic_curve": 22.0, "atomization_energy": 4.6, "spin_splitting": 4.2, "sd_promotion": 3.0,
+_COST = {"diatomic_survey": 24.0, "basis_set_error": 2.0, "atom_survey": 3.0, "atom_survey_basis": 4.0,
+         "diatomic_curve": 22.0, "atomization_energy": 4.6, "spin_splitting": 4.2, "sd_promotion": 3.0,
          "homo_vs_ip": 1.0, "ionisation_potential": 1.1, "electron_affinity": 1.0, "total_energy": 0.5}
 
 

@@ -227,6 +227,59 @@ def sp_configurations(symbol: str) -> tuple[str, str]:
     return f"{head}{n}s2 {n}p{k}", f"{head}{n}s1 {n}p{k + 1}"
 
 
+def atom_survey_basis(c) -> dict[str, float]:
+    """IP, EA and −ε_HOMO of one atom from Gaussian-basis atoms with integer occupations.
+
+    For functionals the radial solver cannot do (range-separated hybrids): each species at its
+    Hund's-rule multiplicity in ``settings["basis"]`` (UKS, symmetry allowed to break, as a production
+    code does it), at the gradient tolerance :data:`SB_GRADIENT_TOLERANCE`.
+    """
+    s = c.system
+    if not s.is_atom or s.charge != 0:
+        raise InputError("atom_survey_basis needs a neutral atom")
+    sym, basis = s.symbol, c.settings["basis"]
+    values: dict[str, float] = {}
+
+    def species(label, charge):
+        from .systems import atom_multiplicity
+
+        summary, dt = calculations.molecule(f"1\n{sym}\n{sym} 0 0 0\n", c.functional, basis, charge=charge,
+                                            multiplicity=atom_multiplicity(sym, charge),
+                                            options={"gradient_tolerance": SB_GRADIENT_TOLERANCE})
+        c.calculations.append({"label": label, "solver": "gaussian", "species": sym, "charge": charge,
+                               "basis": basis, **summary})
+        c.seconds.append(dt)
+        return summary
+
+    def optional(label, charge):
+        try:
+            return species(label, charge)
+        except (CalculationError, InputError) as exc:
+            c.details.setdefault("failed_steps", []).append({"step": label, "error": str(exc).splitlines()[0]})
+            return None
+
+    neutral = species(f"{sym} in {basis}", 0)
+    if neutral["homo_energy"] is not None:
+        values["homo_vs_ip"] = -neutral["homo_energy"] * EV
+    cation = optional(f"{sym} cation", 1) if atomic_number(sym) > 1 else {"total_energy": 0.0}
+    if cation is not None:
+        values["ionisation_potential"] = (cation["total_energy"] - neutral["total_energy"]) * EV
+    anion = optional(f"{sym} anion", -1)
+    if anion is not None:
+        values["electron_affinity"] = (neutral["total_energy"] - anion["total_energy"]) * EV
+        eps = anion["homo_energy"]
+        c.details["anion_homo_energy"] = eps
+        c.details["anion_unbound_orbital"] = eps is not None and eps > 0
+    c.details["atoms"] = f"Gaussian basis {basis}, integer occupations (UKS)"
+    return values
+
+
+def atomic_number(symbol: str) -> int:
+    from .. import elements
+
+    return elements.atomic_number(symbol)
+
+
 def basis_set_error(c) -> dict[str, float]:
     import time
 

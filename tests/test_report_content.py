@@ -254,27 +254,32 @@ def test_s_to_p_promotion_of_carbon_uses_the_quintet_and_matches_pyscf():
                                                           abs=1e-6)
 
 
+def _pyscf_uks_ip_of_oxygen(xc: str, basis: str) -> float:
+    """E(O+, 4S) - E(O, 3P) in eV from pyscf UKS with integer occupations (symmetry-broken), grid level 5."""
+    from pyscf import dft, gto
+
+    e = []
+    for charge, spin in ((0, 2), (1, 3)):
+        mf = dft.UKS(gto.M(atom="O 0 0 0", basis=basis, charge=charge, spin=spin, verbose=0))
+        mf.xc = xc
+        mf.grids.level = 5
+        e.append(mf.kernel())
+    return (e[1] - e[0]) * units.HARTREE_TO_EV
+
+
 def test_symmetry_broken_ip_of_oxygen_matches_pyscf_uks():
     # With symmetry_broken_basis the IP refers to integer-occupation atoms: the spherical radial limit plus
     # E(integer) - E(spherical) in aug-cc-pVTZ.  pyscf UKS (integer occupations, symmetry-broken, aug-cc-pVQZ,
     # run now) gives that IP directly; the two differ by the basis dependence of the symmetry-breaking energy
     # (O, PBE: 1.2 mHa between aug-cc-pVDZ and aug-cc-pVTZ, so <= 0.03 eV at TZ) and pyscf's QZ basis error.
-    from pyscf import dft, gto
-
     from ks1d.sweep.properties import run_property
     from ks1d.sweep.systems import System
 
     out = run_property("atom_survey", System(name="O", kind="atom", symbol="O"), "pbe",
                        {"precision": "normal", "atom_options": {"estimate_error": False},
                         "symmetry_broken_basis": "aug-cc-pvtz"})
-    e = []
-    for charge, spin in ((0, 2), (1, 3)):
-        mf = dft.UKS(gto.M(atom="O 0 0 0", basis="aug-cc-pvqz", charge=charge, spin=spin, verbose=0))
-        mf.xc = "pbe,pbe"
-        mf.grids.level = 5
-        e.append(mf.kernel())
-    ip_pyscf = (e[1] - e[0]) * units.HARTREE_TO_EV
-    assert out["values"]["ionisation_potential"] == pytest.approx(ip_pyscf, abs=0.03)
+    assert out["values"]["ionisation_potential"] == pytest.approx(_pyscf_uks_ip_of_oxygen("pbe,pbe", "aug-cc-pvqz"),
+                                                                   abs=0.03)
     # the spherical IP is ~0.4 eV lower: the correction is not a no-op (O 3P breaks symmetry by ~14 mHa)
     assert out["details"]["symmetry_breaking_energy"]["O"] < -0.01
 
@@ -283,20 +288,13 @@ def test_hse06_atoms_from_the_gaussian_solver_match_pyscf():
     # HSE06 has no radial atoms (range separation): its IP comes from Gaussian UKS atoms with integer
     # occupations in aug-cc-pVTZ.  pyscf's UKS with the same functional, basis and occupations (run now) must
     # give the same IP up to the two codes' grid differences (~1e-5 Ha, well below 0.01 eV).
-    from pyscf import dft, gto
-
     from ks1d.sweep.properties import run_property
     from ks1d.sweep.systems import System
 
     out = run_property("atom_survey_basis", System(name="O", kind="atom", symbol="O"), "hse06",
                        {"basis": "aug-cc-pvtz"})
-    e = []
-    for charge, spin in ((0, 2), (1, 3)):
-        mf = dft.UKS(gto.M(atom="O 0 0 0", basis="aug-cc-pvtz", charge=charge, spin=spin, verbose=0))
-        mf.xc = "hse06"
-        mf.grids.level = 5
-        e.append(mf.kernel())
-    assert out["values"]["ionisation_potential"] == pytest.approx((e[1] - e[0]) * units.HARTREE_TO_EV, abs=0.01)
+    assert out["values"]["ionisation_potential"] == pytest.approx(_pyscf_uks_ip_of_oxygen("hse06", "aug-cc-pvtz"),
+                                                                   abs=0.01)
 
 
 def test_gaussian_atom_functionals_are_listed_beside_the_ranking(tmp_path):

@@ -317,6 +317,14 @@ def _g2_atoms_or_empty() -> tuple[str, ...]:
         return ()
 
 
+#: Quantities of neutral atoms whose reference is one value per element in ks1d's data.
+_ATOM_REFERENCES = {"electron_affinity": "electron_affinity", "sd_promotion": "sd_promotion_energy",
+                    "sp_promotion": "sp_promotion_energy"}
+#: Quantities of diatomics whose reference is one value per formula in ks1d's data.
+_DIATOMIC_REFERENCES = {"bond_length": "diatomic_bond_length", "harmonic_frequency": "diatomic_harmonic_frequency",
+                        "dissociation_energy": "diatomic_dissociation_energy"}
+
+
 def reference_for(quantity: str, system: System, functional: str | None = None,
                   settings: dict[str, Any] | None = None) -> Reference | None:
     """The reference a computed ``quantity`` of ``system`` is compared with, or ``None``.
@@ -334,30 +342,19 @@ def reference_for(quantity: str, system: System, functional: str | None = None,
             ref = _atom_ip(system)
         elif system.dataset == "g2-1":
             ref = g2_1_ionization_energy(system.key)
-    elif quantity == "electron_affinity":
+    elif quantity in _ATOM_REFERENCES:
         if neutral_atom:
-            ref = _from_loader("electron_affinity", system.symbol, quantity)
+            ref = _from_loader(_ATOM_REFERENCES[quantity], system.symbol, quantity)
     elif quantity == "atomization_energy":
         if system.dataset == "g2-1":
             ref = g2_1_atomization_energy(system.key)
-    elif quantity in ("bond_length", "harmonic_frequency"):
+    elif quantity in _DIATOMIC_REFERENCES:
         if system.is_diatomic:
-            q = {"bond_length": "diatomic_bond_length", "harmonic_frequency": "diatomic_harmonic_frequency"}
-            ref = _from_loader(q[quantity], system.key if system.dataset in ("g2-1", "diatomics") else
-                               _formula(system), quantity)
-    elif quantity == "dissociation_energy":
-        if system.is_diatomic:
-            ref = _from_loader("diatomic_dissociation_energy", system.key if system.dataset in ("g2-1", "diatomics")
-                               else _formula(system), quantity)
+            key = system.key if system.dataset in ("g2-1", "diatomics") else _formula(system)
+            ref = _from_loader(_DIATOMIC_REFERENCES[quantity], key, quantity)
     elif quantity == "spin_splitting":
         if system.dataset == "g2-1-pair":
             ref = g2_1_singlet_triplet(system.key)
-    elif quantity == "sd_promotion":
-        if neutral_atom:
-            ref = _from_loader("sd_promotion_energy", system.symbol, quantity)
-    elif quantity == "sp_promotion":
-        if neutral_atom:
-            ref = _from_loader("sp_promotion_energy", system.symbol, quantity)
     elif quantity == "total_energy":
         if neutral_atom and functional and settings.get("atoms", "radial") == "radial":
             ref = _total_energy_reference(system.symbol, functional, settings.get("spin", "polarized"))

@@ -77,13 +77,18 @@ def _atom_energy(c, label: str, **kw) -> dict[str, Any]:
         return summary
 
 
-def _optional(c, label: str, **kw) -> dict[str, Any] | None:
-    """Like :func:`_atom_energy`, but a failure is recorded and gives ``None``."""
+def _or_none(c, label: str, compute) -> dict[str, Any] | None:
+    """``compute()``, or ``None`` with the failure recorded in ``details["failed_steps"]``."""
     try:
-        return _atom_energy(c, label, **kw)
+        return compute()
     except (CalculationError, InputError) as exc:
         c.details.setdefault("failed_steps", []).append({"step": label, "error": str(exc).splitlines()[0]})
         return None
+
+
+def _optional(c, label: str, **kw) -> dict[str, Any] | None:
+    """Like :func:`_atom_energy`, but a failure is recorded and gives ``None``."""
+    return _or_none(c, label, lambda: _atom_energy(c, label, **kw))
 
 
 #: Gradient tolerance of the Gaussian atoms behind the symmetry-breaking correction: their energies stall
@@ -91,7 +96,7 @@ def _optional(c, label: str, **kw) -> dict[str, Any] | None:
 SB_GRADIENT_TOLERANCE = 1e-4
 
 
-def _gaussian_atom(c, label: str, symbol: str, charge: int, basis: str, smearing: float) -> float:
+def _gaussian_atom(c, label: str, symbol: str, charge: int, basis: str, smearing: float = 0.0) -> dict[str, Any]:
     """One Gaussian-basis atom (Hund's-rule multiplicity), recorded like the other solver calls."""
     from .systems import atom_multiplicity
 
@@ -108,7 +113,7 @@ def _gaussian_atom(c, label: str, symbol: str, charge: int, basis: str, smearing
     c.calculations.append({"label": label, "solver": "gaussian", "species": symbol, "charge": charge,
                            "multiplicity": mult, "basis": basis, "smearing": smearing, **summary})
     c.seconds.append(dt)
-    return summary["total_energy"]
+    return summary
 
 
 def _symmetry_broken(c, label: str, symbol: str, charge: int, e_radial: float) -> float:
@@ -128,9 +133,9 @@ def _symmetry_broken(c, label: str, symbol: str, charge: int, e_radial: float) -
     if spherical_determinant(symbol, charge):
         return e_radial
     basis = c.settings["symmetry_broken_basis"]
-    e_int = _gaussian_atom(c, f"{label} integer occupations in {basis}", symbol, charge, basis, 0.0)
+    e_int = _gaussian_atom(c, f"{label} integer occupations in {basis}", symbol, charge, basis)["total_energy"]
     e_sph = _gaussian_atom(c, f"{label} spherical (smeared) in {basis}", symbol, charge, basis,
-                           SPHERICAL_SMEARING)
+                           SPHERICAL_SMEARING)["total_energy"]
     e_ref = e_radial
     if resolve_functional(c.functional).exx_sr or resolve_functional(c.functional).exx_lr:
         opts = dict(c.settings.get("atom_options") or {})
@@ -240,28 +245,14 @@ def atom_survey_basis(c) -> dict[str, float]:
     sym, basis = s.symbol, c.settings["basis"]
     values: dict[str, float] = {}
 
-    def species(label, charge):
-        from .systems import atom_multiplicity
-
-        summary, dt = calculations.molecule(f"1\n{sym}\n{sym} 0 0 0\n", c.functional, basis, charge=charge,
-                                            multiplicity=atom_multiplicity(sym, charge),
-                                            options={"gradient_tolerance": SB_GRADIENT_TOLERANCE})
-        c.calculations.append({"label": label, "solver": "gaussian", "species": sym, "charge": charge,
-                               "basis": basis, **summary})
-        c.seconds.append(dt)
-        return summary
-
     def optional(label, charge):
-        try:
-            return species(label, charge)
-        except (CalculationError, InputError) as exc:
-            c.details.setdefault("failed_steps", []).append({"step": label, "error": str(exc).splitlines()[0]})
-            return None
+        return _or_none(c, label, lambda: _gaussian_atom(c, label, sym, charge, basis))
 
-    neutral = species(f"{sym} in {basis}", 0)
+    neutral = _gaussian_atom(c, f"{sym} in {basis}", sym, 0, basis)
     if neutral["homo_energy"] is not None:
         values["homo_vs_ip"] = -neutral["homo_energy"] * EV
-    cation = optional(f"{sym} cation", 1) if atomic_number(sym) > 1 else {"total_energy": 0.0}
+    bare_nucleus = s.symbol == "H"  # H+ has no electrons: E = 0
+    cation = {"total_energy": 0.0} if bare_nucleus else optional(f"{sym} cation", 1)
     if cation is not None:
         values["ionisation_potential"] = (cation["total_energy"] - neutral["total_energy"]) * EV
     anion = optional(f"{sym} anion", -1)
@@ -272,12 +263,6 @@ def atom_survey_basis(c) -> dict[str, float]:
         c.details["anion_unbound_orbital"] = eps is not None and eps > 0
     c.details["atoms"] = f"Gaussian basis {basis}, integer occupations (UKS)"
     return values
-
-
-def atomic_number(symbol: str) -> int:
-    from .. import elements
-
-    return elements.atomic_number(symbol)
 
 
 def basis_set_error(c) -> dict[str, float]:

@@ -13,6 +13,7 @@ from __future__ import annotations
 
 import os
 import warnings
+from functools import lru_cache
 from dataclasses import dataclass
 from pathlib import Path
 
@@ -67,8 +68,12 @@ def _load_element_basis(spec, symbol: str):
     return shells
 
 
+@lru_cache(maxsize=512)
 def _uses_core_potential(name: str, symbol: str) -> bool:
-    """True if the named basis comes with an effective core potential for ``symbol`` (e.g. def2 for Z > 36)."""
+    """True if the named basis comes with an effective core potential for ``symbol`` (e.g. def2 for Z > 36).
+
+    Cached: reading the ECP data costs ~13 ms, and every molecular basis build asks once per element.
+    """
     from pyscf import gto
 
     with warnings.catch_warnings():

@@ -36,7 +36,7 @@ def main(quick: bool) -> None:
     levels = list(GRID_LEVELS)
     print(f"{'molecule':<12}{'basis':<10}{'xc':<5}" + "".join(f"{lv:>22}" for lv in levels))
     for name, xyz, basis, xc, mult in mols:
-        kw = dict(basis=basis, xc=xc, multiplicity=mult, energy_tolerance=1e-11, gradient_tolerance=1e-8)
+        kw = dict(basis=basis, xc=xc, multiplicity=mult, scf={"energy_tolerance": 1e-11, "residual_tolerance": 1e-8})
         ref = solve_molecule(xyz, grid=CONVERGED, **kw).total_energy
         cells = []
         for lv in levels:

@@ -63,11 +63,11 @@ def ks1d_energy_of_pyscf_orbitals(xc: str, mol, mf) -> float:
 def independent_exc(res, pxc: str) -> float:
     x = np.linspace(np.log(1e-7), np.log(0.998 * res.radial.mesh.r_max), 400001)
     r = np.exp(x)
-    rho = res.radial.density_at(r)  # spins in sorted order: down, up
+    rho = res.radial.density_at(r)  # spins in order alpha, beta
     drho = np.gradient(rho, r, axis=1, edge_order=2)
     zero = np.zeros_like(r)
-    up = np.array([rho[1], drho[1], zero, zero])
-    down = np.array([rho[0], drho[0], zero, zero])
+    up = np.array([rho[0], drho[0], zero, zero])
+    down = np.array([rho[1], drho[1], zero, zero])
     exc = libxc.eval_xc(pxc, (up, down), spin=1, deriv=0)[0]
     return float(np.sum(exc * (rho[0] + rho[1]) * 4 * np.pi * r**3 * (x[1] - x[0])))
 

@@ -11,7 +11,7 @@ Heavy modules (pyscf) are imported on first use only.
 """
 from __future__ import annotations
 
-__version__ = "0.2.0"
+from ._version import __version__
 
 __all__ = ["solve_atom", "solve_molecule", "resolve_functional", "__version__"]
 

@@ -12,7 +12,7 @@ import argparse
 import importlib
 import sys
 
-from . import __version__
+from ._version import __version__
 from .errors import CalculationError, InputError
 
 COMMANDS = ("atom", "molecule", "report", "sweep", "refs", "check", "basis_error")

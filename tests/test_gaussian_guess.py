@@ -51,7 +51,7 @@ def test_damping_and_level_shift_reach_the_same_state():
     # OH (doublet, UKS) must still match pyscf on the shared grid within 1e-6 Ha
     xyz = "O 0 0 0\nH 0 0 0.9697\n"
     res = solve_molecule(xyz, basis="6-31g", xc="pbe", multiplicity=2, grid="coarse",
-                         damping=0.4, level_shift=0.5)
+                         scf={"damping": 0.4, "level_shift": 0.5})
     geom = read_geometry(xyz)
     grid = build_grid(geom, "coarse")
     mf = dft.UKS(build_basis(geom, "6-31g", multiplicity=2).mol)

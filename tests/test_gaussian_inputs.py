@@ -10,6 +10,7 @@ import json
 import numpy as np
 import pytest
 
+import ks1d
 from ks1d.cli import main
 from ks1d.errors import (BasisError, ConvergenceError, GeometryError, SettingsError, SpinError,
                          UnsupportedFunctional)
@@ -95,7 +96,7 @@ def test_bad_settings():
     with pytest.raises(SettingsError, match="unknown grid level 'superfine'"):
         solve_molecule(H2, basis="sto-3g", xc="lda", grid="superfine")
     with pytest.raises(SettingsError, match="damping"):
-        solve_molecule(H2, basis="sto-3g", xc="lda", damping=1.5)
+        solve_molecule(H2, basis="sto-3g", xc="lda", scf={"damping": 1.5})
 
 
 def test_unsupported_functional_kind_names_kind_and_solver():
@@ -110,7 +111,7 @@ def test_unsupported_functional_kind_names_kind_and_solver():
 def test_non_convergence_raises_with_history():
     with pytest.raises(ConvergenceError) as info:
         solve_molecule("O 0 0 0\nO 0 0 1.21\n", basis="6-31g", xc="pbe", multiplicity=3,
-                       max_iterations=3, grid="coarse")
+                       scf={"max_iterations": 3}, grid="coarse")
     assert len(info.value.history) == 3
     assert all(np.isfinite(r.energy) for r in info.value.history)
     assert "did not converge in 3 iterations" in str(info.value)
@@ -151,7 +152,7 @@ def test_cli_json_keys_are_result_fields(tmp_path, capsys):
     res = solve_molecule(str(path), basis="sto-3g", xc="lda", grid="coarse")
     assert set(data) == set(res.to_dict())
     assert data["total_energy"] == pytest.approx(res.total_energy, abs=1e-9)
-    assert data["settings"]["ks1d_version"]
+    assert data["version"] == ks1d.__version__
     # H2/STO-3G is symmetric: no dipole, zero Mulliken charges (symmetry, exact)
     assert np.allclose(data["dipole"], 0, atol=1e-8)
     assert np.allclose(data["mulliken_charges"], 0, atol=1e-8)

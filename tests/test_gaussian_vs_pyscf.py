@@ -148,7 +148,7 @@ def test_hybrid_and_meta_gga_match_pyscf_on_shared_grid(case):
 def test_small_smearing_reproduces_aufbau_energy_of_gapped_molecule():
     # Fermi-Dirac width 1e-3 Ha << HOMO-LUMO gap (~0.2 Ha): occupations stay integral
     # to ~exp(-200), so the energy must equal pyscf's aufbau value.
-    res = solve_molecule(WATER, basis="6-31g", xc="pbe", grid="fine", smearing=1e-3)
+    res = solve_molecule(WATER, basis="6-31g", xc="pbe", grid="fine", scf={"smearing": 1e-3})
     e_ref, _, _ = pyscf_reference(WATER, "6-31g", "pbe")
     assert res.total_energy == pytest.approx(e_ref, abs=1e-6)
     assert res.homo_lumo_gap > 0.1

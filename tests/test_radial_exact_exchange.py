@@ -24,8 +24,8 @@ def test_hydrogen_hartree_fock_is_exact():
     # one electron: exchange cancels the self-Hartree energy and E = -1/2 exactly (textbook)
     res = ks1d.solve_atom("H", xc="hf", estimate_error=False)
     assert res.total_energy == pytest.approx(-0.5, abs=1e-9)
-    assert res.components["exact_exchange"] == pytest.approx(-res.components["hartree"], abs=1e-8)
-    assert res.components["hartree"] == pytest.approx(5 / 16, abs=1e-8)  # 5/16 for the 1s density (textbook)
+    assert res.components["exact_exchange"] == pytest.approx(-res.components.coulomb, abs=1e-8)
+    assert res.components.coulomb == pytest.approx(5 / 16, abs=1e-8)  # 5/16 for the 1s density (textbook)
 
 
 pytest.importorskip("pyscf")

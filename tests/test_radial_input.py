@@ -8,7 +8,7 @@ import pytest
 import ks1d
 from ks1d.errors import (ConfigurationError, ConvergenceError, InputError, SettingsError, SpinError,
                          UnknownElement, UnknownFunctional)
-from ks1d.radial.scf import SCFSettings
+from ks1d.results import SCFOptions
 
 
 @pytest.mark.parametrize("kwargs, exc, pattern", [
@@ -34,7 +34,7 @@ def test_bad_input_raises_specific_value_error(kwargs, exc, pattern):
 
 def test_non_converging_scf_raises_with_history():
     with pytest.raises(ConvergenceError) as info:
-        ks1d.solve_atom("Fe", xc="pbe", scf=SCFSettings(max_iterations=3))
+        ks1d.solve_atom("Fe", xc="pbe", scf=SCFOptions(max_iterations=3))
     err = info.value
     assert len(err.history) == 3
     assert "diagnosis" in str(err)

@@ -1,6 +1,8 @@
 """``ks1d atom``: one spherical atom at the radial basis-set limit."""
 from __future__ import annotations
 
+from ..serialize import dumps
+
 import json
 
 from ..units import HARTREE_TO_EV
@@ -17,6 +19,9 @@ def register(sub) -> None:
     p.add_argument("--config", default=None, help="configuration, e.g. '[Ar] 3d7 4s1' or '[He] 2s2 2p(3,1)'")
     p.add_argument("--precision", choices=("low", "normal", "high"), default="normal")
     p.add_argument("--no-error-estimate", action="store_true", help="skip the refined-mesh error estimate")
+    p.add_argument("--damping", type=float, default=None,
+                   help="fraction of the previous SCF input kept per step, in [0, 1) (default 0.5)")
+    p.add_argument("--max-iterations", type=int, default=None, help="SCF iteration limit (default 150)")
     p.add_argument("--json", action="store_true", help="print one JSON object")
     p.add_argument("--radial", action="store_true", help="with --json: include density, potentials and orbitals on the mesh")
     p.set_defaults(func=run)
@@ -30,10 +35,11 @@ def run(args) -> int:
 
         raise SpinError("--restricted and --spin contradict each other; give one of them")
     spin = "restricted" if args.restricted else ("polarized" if args.spin is None else args.spin)
+    scf = {k: v for k, v in (("damping", args.damping), ("max_iterations", args.max_iterations)) if v is not None}
     res = solve_atom(args.element, xc=args.xc, charge=args.charge, spin=spin, config=args.config,
-                     precision=args.precision, estimate_error=not args.no_error_estimate)
+                     precision=args.precision, estimate_error=not args.no_error_estimate, scf=scf)
     if args.json:
-        print(json.dumps(res.to_dict(include_radial=args.radial)))
+        print(dumps(res.to_dict(include_radial=args.radial)))
     else:
         print(format_atom(res))
     return 0
@@ -50,7 +56,8 @@ def format_atom(res) -> str:
         "",
         f"{'energy':<24}{'hartree':>20}{'eV':>18}",
     ]
-    rows = [("total", res.total_energy)] + [(k.replace("_", " "), v) for k, v in res.components.items()]
+    rows = [("total", res.total_energy)] + [(k.replace("_", " "), v) for k, v in res.components.items()
+                                            if k != "nuclear_repulsion"]
     for name, val in rows:
         lines.append(f"{name:<24}{val:>20.8f}{val * HARTREE_TO_EV:>18.5f}")
     est = "not estimated" if res.error_estimate is None else f"{res.error_estimate:.1e} Ha"

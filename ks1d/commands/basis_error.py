@@ -5,6 +5,8 @@
 """
 from __future__ import annotations
 
+from ..serialize import dumps
+
 import json
 
 from .. import units
@@ -50,5 +52,5 @@ def run(args) -> int:
     with single_threaded():  # small matrices: one BLAS/OpenMP thread is faster (see ks1d.threads)
         rep = basis_error_report(args.elements, basis=args.basis, xc=args.xc, xyz=args.xyz,
                                  precision=args.precision, grid=args.grid)
-    print(json.dumps(rep.to_dict()) if args.json else format_report(rep))
+    print(dumps(rep.to_dict()) if args.json else format_report(rep))
     return 0

@@ -1,6 +1,8 @@
 """``ks1d molecule``: Kohn–Sham ground state of a molecule in a Gaussian basis."""
 from __future__ import annotations
 
+from ..serialize import dumps
+
 import json
 
 from ..units import HARTREE_TO_EV
@@ -16,9 +18,15 @@ def register(sub) -> None:
     p.add_argument("--multiplicity", type=int, default=1, help="spin multiplicity 2S+1 (default 1)")
     p.add_argument("--grid", default="default", help="grid level: coarse, default, fine, reference")
     p.add_argument("--guess", default="atoms", help="initial guess: atoms (radial atoms) or core")
-    p.add_argument("--smearing", type=float, default=0.0, metavar="HARTREE",
+    p.add_argument("--spin", choices=("restricted", "polarized"), default=None,
+                   help="restricted (RKS) or polarized (UKS) orbitals (default: restricted for singlets)")
+    p.add_argument("--smearing", type=float, default=None, metavar="HARTREE",
                    help="Fermi-Dirac smearing width (default 0: aufbau)")
-    p.add_argument("--max-iterations", type=int, default=100)
+    p.add_argument("--damping", type=float, default=None,
+                   help="fraction of the previous Fock matrix kept per step, in [0, 1) (default 0)")
+    p.add_argument("--level-shift", type=float, default=None, metavar="HARTREE",
+                   help="virtual-orbital level shift (default 0)")
+    p.add_argument("--max-iterations", type=int, default=None, help="SCF iteration limit (default 100)")
     p.add_argument("--json", action="store_true", help="print one JSON object")
     p.set_defaults(func=run)
 
@@ -26,11 +34,14 @@ def register(sub) -> None:
 def run(args) -> int:
     from ..gaussian.scf import solve_molecule
 
+    scf = {k: v for k, v in (("smearing", args.smearing), ("damping", args.damping),
+                             ("level_shift", args.level_shift), ("max_iterations", args.max_iterations))
+           if v is not None}
     res = solve_molecule(args.xyz, basis=args.basis, xc=args.xc, charge=args.charge,
-                         multiplicity=args.multiplicity, grid=args.grid, guess=args.guess,
-                         smearing=args.smearing, max_iterations=args.max_iterations)
+                         multiplicity=args.multiplicity, spin=args.spin, grid=args.grid, guess=args.guess,
+                         scf=scf)
     if args.json:
-        print(json.dumps(res.to_dict()))
+        print(dumps(res.to_dict()))
     else:
         print(format_molecule(res))
     return 0
@@ -39,11 +50,11 @@ def run(args) -> int:
 def format_molecule(res) -> str:
     """Readable summary: settings, energy components, orbitals near the gap, analysis."""
     s = res.settings
-    f = s["xc"]
+    f = res.functional
     formula = " ".join(res.geometry["symbols"])
     lines = [
         f"molecule       {formula}  (charge {res.charge:+d}, multiplicity {res.multiplicity}, "
-        f"{'restricted' if res.restricted else 'unrestricted'})",
+        f"{res.spin})",
         f"basis          {s['basis']}  ({res.basis_functions} functions)",
         f"functional     {f['name']}  [{f['libxc']}, {f['kind']}]",
         f"grid           {s['grid_level']}  ({res.grid_points} points), guess: {s['guess']}",
@@ -59,7 +70,7 @@ def format_molecule(res) -> str:
     if res.homo_lumo_gap is not None:
         lines.append(f"HOMO / LUMO / gap       {res.homo_energy:.6f} / {res.lumo_energy:.6f} / "
                      f"{res.homo_lumo_gap:.6f} Ha  ({res.homo_lumo_gap * HARTREE_TO_EV:.3f} eV)")
-    if not res.restricted:
+    if res.spin == "polarized":
         lines.append(f"<S^2>                   {res.spin_square:.6f}")
     d = res.dipole
     lines.append(f"dipole / e bohr         {d[0]:+.6f} {d[1]:+.6f} {d[2]:+.6f}   "

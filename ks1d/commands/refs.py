@@ -5,6 +5,8 @@
 """
 from __future__ import annotations
 
+from ..serialize import dumps
+
 import csv
 import io
 import json
@@ -76,7 +78,7 @@ def _refs(args) -> int:
     rows = reference_energies(symbols, xcs, basis=args.basis, precision=args.precision,
                               executor=make_executor(workers=args.workers))
     if args.json:
-        print(json.dumps([r.to_dict() for r in rows], indent=1))
+        print(dumps([r.to_dict() for r in rows], indent=1))
     elif args.csv:
         buf = io.StringIO()
         w = csv.DictWriter(buf, fieldnames=_CSV_COLUMNS, lineterminator="\n")
@@ -92,7 +94,7 @@ def _refs(args) -> int:
 
 
 def _table(rows, args) -> str:
-    from .. import __version__
+    from .._version import __version__
 
     where = (f"Gaussian basis {args.basis}" if args.basis
              else f"basis-set limit (radial solver, precision {args.precision})")

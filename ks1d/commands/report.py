@@ -6,6 +6,8 @@
 """
 from __future__ import annotations
 
+from ..serialize import dumps
+
 import json
 import os
 import sys
@@ -73,7 +75,7 @@ def _report(args) -> int:
                             retry_failed=args.retry_failed,
                             symmetry_broken=args.symmetry_basis if args.symmetry_broken else None)
     if args.json:
-        print(json.dumps(out.to_dict(), indent=1))
+        print(dumps(out.to_dict(), indent=1))
     else:
         print(_summary(out))
     return 0  # failed jobs are findings, listed in the report; the report itself was written

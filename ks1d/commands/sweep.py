@@ -7,6 +7,8 @@
 """
 from __future__ import annotations
 
+from ..serialize import dumps
+
 import json
 import sys
 
@@ -75,7 +77,7 @@ def _plan(args) -> int:
         with Store(args.store) as store:
             status = {r.key: r.status for r in store.rows()}
     if args.json:
-        print(json.dumps([{"key": j.key, "property": j.property, "system": j.system.name,
+        print(dumps([{"key": j.key, "property": j.property, "system": j.system.name,
                            "functional": j.functional, "settings": j.settings_dict,
                            "status": status.get(j.key, "new")} for j in jobs], indent=1))
         return 0
@@ -101,7 +103,7 @@ def _run(args) -> int:
     summary = run_sweep(spec, args.store, executor, retry_failed=args.retry_failed,
                         progress=not args.no_progress, limit=args.limit, rerun=args.rerun)
     if args.json:
-        print(json.dumps(summary.to_dict(), indent=1))
+        print(dumps(summary.to_dict(), indent=1))
     else:
         where = executor.name + (f" ({summary.workers} workers)" if summary.workers else "")
         print(f"sweep '{summary.sweep}': {summary.total} jobs, {summary.skipped} already finished, "
@@ -122,7 +124,7 @@ def _status(args) -> int:
         runs = store.runs()
         failed = list(store.rows(status="failed"))
     if args.json:
-        print(json.dumps({"counts": counts, "runs": runs,
+        print(dumps({"counts": counts, "runs": runs,
                           "failed": [{"key": r.key, "system": r.system, "property": r.property,
                                       "functional": r.functional, "error_type": r.error_type, "error": r.error,
                                       "attempts": r.attempts} for r in failed]}, indent=1))

@@ -49,9 +49,8 @@ def _load_element_basis(spec, symbol: str):
         warnings.simplefilter("ignore")
         try:
             shells = gto.basis.load(text_or_name, symbol)
-        except BasisNotFoundError as exc:
-            msg = str(exc)
-            if "Unknown basis" in msg and not is_file:
+        except BasisNotFoundError:
+            if not is_file and not known_basis_name(text_or_name):
                 raise BasisError(
                     f"unknown basis '{spec}': not a basis name known to the integral library "
                     "and not an existing basis file"
@@ -66,6 +65,35 @@ def _load_element_basis(spec, symbol: str):
             f"basis '{spec}' pairs element {symbol} with an effective core potential; ks1d is all-electron, "
             "so use an all-electron basis for it (e.g. 'ano-rcc' or 'cc-pvtz-dk' where the integral library has it)")
     return shells
+
+
+@lru_cache(maxsize=512)
+def known_basis_name(name: str) -> bool:
+    """True if ``name`` names a basis of pyscf's library (or of basis-set-exchange, when installed).
+
+    Decided from the library's name tables, not from the wording of its error messages, which
+    changes between versions (and with basis-set-exchange installed).
+    """
+    from pyscf.gto import basis as B
+
+    key = B._format_basis_name(name)
+    tables = [getattr(B, t, {}) for t in ("ALIAS", "USER_BASIS_ALIAS", "GTH_ALIAS", "USER_GTH_ALIAS")]
+    if any(key in t for t in tables):
+        return True
+    try:
+        if B._is_pople_basis(key):
+            return True
+    except Exception:  # noqa: BLE001 - a private helper that may change; the tables decide then
+        pass
+    try:
+        import basis_set_exchange as bse  # optional extra
+    except ImportError:
+        return False
+    try:
+        bse.api.get_basis_family(name)  # raises KeyError for an unknown name
+        return True
+    except Exception:  # noqa: BLE001
+        return False
 
 
 @lru_cache(maxsize=512)

@@ -17,17 +17,25 @@ matrices with DIIS on the orbital-gradient commutator e = Xᵀ(F D S − S D F)X
 or the energy rises, it falls back for a few iterations to damped Fock
 matrices with a virtual-space level shift (V. R. Saunders and I. H. Hillier,
 Int. J. Quantum Chem. 7, 699 (1973)), then resumes DIIS.  Convergence
-requires both |ΔE| < energy_tolerance and max|e| < gradient_tolerance.
+requires both |ΔE| < energy_tolerance and max|e| < residual_tolerance
+(:class:`ks1d.results.SCFOptions`).
+
+The SCF policy — when density fitting hands over to exact builds, when the
+fallback starts and how strong it is — is a set of named constants below;
+:func:`solve_molecule` reads as its steps: set up, build one-electron
+matrices and the grid, guess, iterate, analyse.
 """
 from __future__ import annotations
 
 import time
+from dataclasses import dataclass
 
 import numpy as np
 
-from .. import __version__
+from .._version import __version__
 from ..errors import ConvergenceError, IterationRecord, SettingsError, SpinError, UnsupportedFunctional
 from ..mixing import diis_coefficients
+from ..results import SPIN_TREATMENTS, EnergyComponents, SCFOptions, multiplicity_of
 from ..xc import resolve_functional
 from .basis import build_basis, check_electron_count
 from .coulomb import FittedCoulomb, FittedExchange, TwoElectronBuilder
@@ -36,7 +44,7 @@ from .geometry import nuclear_repulsion, read_geometry
 from .grid import build_grid, grid_level
 from .guess import guess_fock
 from .occupations import aufbau, fermi_dirac
-from .result import EnergyComponents, MolecularOrbital, MoleculeResult
+from .result import MolecularOrbital, MoleculeResult
 
 
 def canonical_orthogonaliser(S: np.ndarray, threshold: float = 1e-8) -> np.ndarray:
@@ -57,11 +65,37 @@ def spin_square(C: tuple, occ: tuple, S: np.ndarray) -> float:
     return float(sz * (sz + 1) + nb - np.einsum("i,j,ij->", occ[0], occ[1], O**2))
 
 
+# ------------------------------------------------------------------ SCF policy
+#: SCF defaults of the Gaussian solver (see :class:`ks1d.results.SCFOptions`); the residual is
+#: max |Xᵀ(FDS − SDF)X|, the orbital-gradient commutator in the orthonormal basis.
+MOLECULE_SCF_DEFAULTS = SCFOptions(max_iterations=100, energy_tolerance=1e-8, residual_tolerance=1e-5,
+                                   damping=0.0, history=8, level_shift=0.0, smearing=0.0)
+#: the options a Gaussian-solver ConvergenceError may suggest: (SCFOptions field, CLI flag)
+MOLECULE_REMEDIES = (("damping", "--damping"), ("level_shift", "--level-shift"), ("smearing", "--smearing"),
+                     ("max_iterations", "--max-iterations"))
+
 #: weight of the guess Fock matrix in the first SCF step (damps the initial overshoot)
 FIRST_STEP_MIX = 0.5
-
 #: basis size from which density-fitted J accelerates the early iterations by default
 FITTING_MIN_FUNCTIONS = 100
+#: orbital gradient at which fitted J/K hand over to the first exact build
+FIT_SWITCH_GRADIENT = 1e-4
+#: the "corrected" (fitted + frozen exact-minus-fitted) stage returns to an exact build after this
+#: many steps, or once gradient and |ΔE| are below this fraction of their tolerances
+CORRECTED_MAX_STEPS = 8
+CORRECTED_EXIT_FRACTION = 0.3
+#: user damping and level shift act only while the orbital gradient exceeds this
+DAMPING_GRADIENT = 1e-3
+#: the fallback stage (damped, level-shifted Fock matrices) starts after FALLBACK_EARLIEST iterations
+#: when the gradient has not dropped below STALL_IMPROVEMENT × its best for STALL_ITERATIONS iterations,
+#: or the energy rose by more than RISE_TRIGGER hartree, and lasts FALLBACK_STEPS iterations
+FALLBACK_EARLIEST = 3
+STALL_IMPROVEMENT = 0.8
+STALL_ITERATIONS = 6
+RISE_TRIGGER = 1e-2
+FALLBACK_STEPS = 8
+FALLBACK_DAMPING = 0.5
+FALLBACK_LEVEL_SHIFT = 0.3
 
 
 class _FockDIIS:
@@ -204,38 +238,229 @@ class _FockBuilder:
         return F, parts
 
 
-def _validate(max_iterations, energy_tolerance, gradient_tolerance, smearing, level_shift,
-              damping, diis_size):
-    if int(max_iterations) != max_iterations or max_iterations < 1:
-        raise SettingsError(f"max_iterations must be a positive integer, got {max_iterations}")
-    for name, v in (("energy_tolerance", energy_tolerance), ("gradient_tolerance", gradient_tolerance)):
-        if not (v > 0 and np.isfinite(v)):
-            raise SettingsError(f"{name} must be a positive number, got {v}")
-    if not smearing >= 0:
-        raise SettingsError(f"smearing width must be ≥ 0 hartree, got {smearing}")
-    if not level_shift >= 0:
-        raise SettingsError(f"level_shift must be ≥ 0 hartree, got {level_shift}")
-    if not 0 <= damping < 1:
-        raise SettingsError(f"damping must lie in [0, 1), got {damping}")
-    if int(diis_size) != diis_size or diis_size < 2:
-        raise SettingsError(f"diis_size must be an integer ≥ 2, got {diis_size}")
+@dataclass(frozen=True, eq=False)
+class _Problem:
+    """What the loop needs: geometry, functional, basis, grid values, electron counts, options."""
+
+    geom: object
+    func: object
+    bset: object
+    lvl: object
+    restricted: bool
+    n_alpha: int
+    n_beta: int
+    options: SCFOptions
+
+    @property
+    def ns(self) -> int:
+        return 1 if self.restricted else 2
+
+    @property
+    def capacity(self) -> float:
+        return 2.0 if self.restricted else 1.0
+
+    @property
+    def counts(self) -> tuple:
+        return (self.n_alpha + self.n_beta,) if self.restricted else (self.n_alpha, self.n_beta)
+
+
+@dataclass(frozen=True, eq=False)
+class _OneElectron:
+    """Overlap, kinetic and nuclear-attraction matrices, the orthogonaliser and E_nn."""
+
+    S: np.ndarray
+    T: np.ndarray
+    Vn: np.ndarray
+    X: np.ndarray
+    e_nn: float
+
+    @property
+    def hcore(self) -> np.ndarray:
+        return self.T + self.Vn
+
+
+class _Orbitals:
+    """Diagonalisation, occupations, densities and orbital gradients of one problem."""
+
+    def __init__(self, problem: _Problem, one: _OneElectron):
+        self.p, self.one = problem, one
+
+    def diagonalise(self, F):
+        p, X = self.p, self.one.X
+        smearing = p.options.smearing
+        Cs, es, fs = [], [], []
+        for s in range(p.ns):
+            e, c = np.linalg.eigh(X.T @ F[s] @ X)
+            C = X @ c
+            f = (fermi_dirac(e, p.counts[s], p.capacity, smearing) if smearing > 0
+                 else aufbau(e, p.counts[s], p.capacity))
+            Cs.append(C)
+            es.append(e)
+            fs.append(f)
+        return Cs, es, fs
+
+    @staticmethod
+    def density(Cs, fs):
+        return np.array([(C * f) @ C.T for C, f in zip(Cs, fs)])
+
+    def commutators(self, F, D):
+        S, X = self.one.S, self.one.X
+        return np.array([X.T @ (F[s] @ D[s] @ S - S @ D[s] @ F[s]) @ X for s in range(self.p.ns)])
+
+
+def _set_up(geometry, basis, xc, charge, multiplicity, spin, grid, scf) -> _Problem:
+    """Check and resolve every input before any integral is computed."""
+    options = SCFOptions.coerce(scf).resolved(MOLECULE_SCF_DEFAULTS, "Gaussian solver")
+    try:
+        func = resolve_functional(xc)
+    except UnsupportedFunctional as exc:
+        raise UnsupportedFunctional(f"{exc} (Gaussian solver)") from None
+    geom = read_geometry(geometry)
+    n_alpha, n_beta = check_electron_count(geom, charge, multiplicity)
+    if spin is None:
+        spin = "restricted" if n_alpha == n_beta else "polarized"
+    if spin not in SPIN_TREATMENTS:
+        raise SpinError(f"spin must be 'restricted' or 'polarized' (or None: restricted for singlets), got {spin!r}")
+    restricted = spin == "restricted"
+    if restricted and n_alpha != n_beta:
+        raise SpinError(
+            f"restricted (closed-shell) orbitals need multiplicity 1, got {multiplicity}; "
+            "use spin='polarized' (unrestricted orbitals) for open shells")
+    lvl = grid_level(grid)
+    bset = build_basis(geom, basis, charge, multiplicity)
+    if max(n_alpha, n_beta) > bset.nao:
+        raise SettingsError(f"basis has {bset.nao} functions, too few for {max(n_alpha, n_beta)} electrons of one spin")
+    return _Problem(geom, func, bset, lvl, restricted, n_alpha, n_beta, options)
+
+
+def _one_electron(problem: _Problem) -> _OneElectron:
+    mol = problem.bset.mol
+    S = mol.intor_symmetric("int1e_ovlp")
+    T = mol.intor_symmetric("int1e_kin")
+    Vn = mol.intor_symmetric("int1e_nuc")
+    return _OneElectron(S=S, T=T, Vn=Vn, X=canonical_orthogonaliser(S), e_nn=nuclear_repulsion(problem.geom))
+
+
+@dataclass
+class _Outcome:
+    """The converged loop: last Fock matrix, its input density, energy parts and history."""
+
+    F: np.ndarray
+    D: np.ndarray
+    parts: dict
+    energy: float
+    history: list
+    fock: "_FockBuilder"
+    t_diag: float
+
+
+def _iterate(p: _Problem, one: _OneElectron, orb: _Orbitals, fock: "_FockBuilder", F_guess: np.ndarray,
+             fit_switch: float) -> _Outcome:
+    """DIIS on the orbital gradient with the fitted → exact Coulomb policy and the fallback stage."""
+    opt = p.options
+    S = one.S
+    Cs, es, fs = orb.diagonalise(F_guess)
+    D = orb.density(Cs, fs)
+    mixer = _FockDIIS(opt.history)
+    history: list[IterationRecord] = []
+    e_old = None
+    best, since_best = np.inf, 0
+    corrected_steps = 0
+    fallback_left = 0
+    F_in_prev = None
+    t_diag = 0.0
+    for it in range(1, opt.max_iterations + 1):
+        F, parts = fock(D)
+        energy = sum(parts.values()) + one.e_nn
+        err = orb.commutators(F, D)
+        gnorm = float(np.abs(err).max())
+        dE = energy - e_old if e_old is not None else np.inf
+        history.append(IterationRecord(it, energy, float(dE) if np.isfinite(dE) else float("nan"), gnorm))
+        exact_now = fock.mode == "exact"
+        if fock.mode == "fit" and (gnorm < fit_switch or it >= opt.max_iterations // 2):
+            exact_now = True
+        if fock.mode == "corrected":
+            corrected_steps += 1
+            if ((gnorm < CORRECTED_EXIT_FRACTION * opt.residual_tolerance
+                 and abs(dE) < CORRECTED_EXIT_FRACTION * opt.energy_tolerance)
+                    or corrected_steps >= CORRECTED_MAX_STEPS):
+                exact_now = True
+        if exact_now and fock.mode != "exact":
+            # exact Coulomb at this density; shift the DIIS history by the change ΔF of the
+            # Fock matrix (fitted → exact) and judge convergence on the exact quantities
+            F_approx = F
+            fock.mode = "exact"
+            F, parts = fock(D)
+            energy = sum(parts.values()) + one.e_nn
+            err = orb.commutators(F, D)
+            gnorm = float(np.abs(err).max())
+            mixer.shift_history(F - F_approx, orb.commutators)
+            # dE keeps the change between this and the previous iteration measured with one
+            # and the same (approximate) operator; the exact-minus-approximate offset cancels
+            history[-1] = IterationRecord(it, energy, float(dE) if np.isfinite(dE) else float("nan"), gnorm)
+            best, since_best = np.inf, 0
+        if exact_now:
+            if abs(dE) < opt.energy_tolerance and gnorm < opt.residual_tolerance:
+                return _Outcome(F, D, parts, energy, history, fock, t_diag)
+            if fock.can_fit:
+                # continue with fitted J plus the exact correction ΔJ frozen at this density
+                fock.mode = "corrected"
+                corrected_steps = 0
+        e_old = energy
+        # --- choose the stage: DIIS, or the damped and level-shifted fallback
+        if gnorm < STALL_IMPROVEMENT * best:
+            best, since_best = gnorm, 0
+        else:
+            since_best += 1
+        if fallback_left == 0 and it > FALLBACK_EARLIEST and (since_best >= STALL_ITERATIONS or dE > RISE_TRIGGER):
+            fallback_left = FALLBACK_STEPS
+            mixer.reset()
+            best, since_best = np.inf, 0
+        t0 = time.perf_counter()
+        if fallback_left > 0:
+            fallback_left -= 1
+            beta, shift = max(opt.damping, FALLBACK_DAMPING), max(opt.level_shift, FALLBACK_LEVEL_SHIFT)
+            F_in = F if F_in_prev is None else (1 - beta) * F + beta * F_in_prev
+            if fallback_left == 0:
+                mixer.reset()
+        else:
+            F_in = mixer.step(F, err, D)
+            if it == 1 and FIRST_STEP_MIX > 0:
+                # the first Fock matrix overshoots (charge sloshing away from the atomic
+                # potentials); average it with the guess Fock matrix
+                F_in = (1 - FIRST_STEP_MIX) * F_in + FIRST_STEP_MIX * F_guess
+            far = gnorm > DAMPING_GRADIENT
+            beta = opt.damping if far else 0.0
+            shift = opt.level_shift if far else 0.0
+            if beta > 0 and F_in_prev is not None:
+                F_in = (1 - beta) * F_in + beta * F_in_prev
+        F_in_prev = F_in
+        if shift > 0:
+            F_in = np.array([F_in[s] + shift * (S - S @ D[s] @ S / p.capacity) for s in range(p.ns)])
+        Cs, es, fs = orb.diagonalise(F_in)
+        D = orb.density(Cs, fs)
+        t_diag += time.perf_counter() - t0
+    raise ConvergenceError(
+        f"SCF did not converge in {opt.max_iterations} iterations "
+        f"(energy tolerance {opt.energy_tolerance:g} Ha, residual tolerance {opt.residual_tolerance:g})",
+        history, MOLECULE_REMEDIES)
 
 
 def solve_molecule(geometry, basis="def2-svp", xc="pbe", charge: int = 0, multiplicity: int = 1, *,
-                   restricted: bool | None = None, grid="default", guess: str = "atoms",
-                   max_iterations: int = 100, energy_tolerance: float = 1e-8,
-                   gradient_tolerance: float = 1e-5, smearing: float = 0.0,
-                   level_shift: float = 0.0, damping: float = 0.0, diis_size: int = 8,
-                   ao_cache_mb: float = 1024.0, coulomb_fitting: bool | None = None,
-                   fit_switch: float = 1e-4) -> MoleculeResult:
+                   spin: str | None = None, grid="default", guess: str = "atoms",
+                   scf: SCFOptions | dict | None = None, ao_cache_mb: float = 1024.0,
+                   coulomb_fitting: bool | None = None, fit_switch: float = FIT_SWITCH_GRADIENT) -> MoleculeResult:
     """Self-consistent Kohn–Sham (or Hartree–Fock) ground state of a molecule.
 
     geometry: XYZ file path, XYZ text (Å) or a :class:`~ks1d.gaussian.geometry.Geometry`.
     basis: basis name, element → name mapping (optional ``"default"`` key) or basis file.
     xc: ks1d alias or libxc identifier (``"pbe"``, ``"gga_x_pbe,gga_c_pbe"``, ``"hf"``…).
-    multiplicity: 2S+1; ``restricted`` defaults to True for singlets (RKS), else UKS.
+    multiplicity: 2S+1; ``spin``: "restricted" (RKS), "polarized" (UKS) or None (restricted
+    for singlets, polarized otherwise).
     grid: grid level name ("coarse", "default", "fine", "reference").
-    smearing: Fermi–Dirac width in hartree (0 = aufbau occupations).
+    scf: :class:`~ks1d.results.SCFOptions` or a mapping of its fields (tolerances, damping,
+    level shift, Fermi–Dirac smearing width in hartree, …); unset fields take
+    :data:`MOLECULE_SCF_DEFAULTS`.
     coulomb_fitting (default: on from 100 basis functions): start with density-fitted J (cheap) until the orbital
     gradient drops below ``fit_switch``; then alternate exact J builds with
     cheap iterations on J_fit[D] + (J − J_fit)[D_exact] frozen at the last
@@ -244,211 +469,75 @@ def solve_molecule(geometry, basis="def2-svp", xc="pbe", charge: int = 0, multip
     Raises :class:`~ks1d.errors.ConvergenceError` (with the history) if the SCF fails.
     """
     t_start = time.perf_counter()
-    _validate(max_iterations, energy_tolerance, gradient_tolerance, smearing, level_shift,
-              damping, diis_size)
-    try:
-        func = resolve_functional(xc)
-    except UnsupportedFunctional as exc:
-        raise UnsupportedFunctional(f"{exc} (Gaussian solver)") from None
-    geom = read_geometry(geometry)
-    n_alpha, n_beta = check_electron_count(geom, charge, multiplicity)
-    if restricted is None:
-        restricted = n_alpha == n_beta
-    if restricted and n_alpha != n_beta:
-        raise SpinError(
-            f"restricted (closed-shell) orbitals need multiplicity 1, got {multiplicity}; "
-            "use restricted=False for open shells")
-    lvl = grid_level(grid)
-    bset = build_basis(geom, basis, charge, multiplicity)
-    mol = bset.mol
-    nao = bset.nao
-    if max(n_alpha, n_beta) > nao:
-        raise SettingsError(f"basis has {nao} functions, too few for {n_alpha} electrons of one spin")
+    p = _set_up(geometry, basis, xc, charge, multiplicity, spin, grid, scf)
     t_setup = time.perf_counter()
-
-    S = mol.intor_symmetric("int1e_ovlp")
-    T = mol.intor_symmetric("int1e_kin")
-    Vn = mol.intor_symmetric("int1e_nuc")
-    hcore = T + Vn
-    X = canonical_orthogonaliser(S)
-    e_nn = nuclear_repulsion(geom)
-
-    mgrid = build_grid(geom, lvl)
-    deriv = 1 if func.needs_gradient else 0
-    bog = BasisOnGrid(bset, mgrid, deriv, cache_mb=ao_cache_mb)
+    one = _one_electron(p)
+    mgrid = build_grid(p.geom, p.lvl)
+    bog = BasisOnGrid(p.bset, mgrid, 1 if p.func.needs_gradient else 0, cache_mb=ao_cache_mb)
     t_grid = time.perf_counter()
-
-    ns = 1 if restricted else 2
-    capacity = 2.0 if restricted else 1.0
-    counts = (n_alpha + n_beta,) if restricted else (n_alpha, n_beta)
-
-    def diagonalise(F):
-        Cs, es, fs = [], [], []
-        for s in range(ns):
-            e, c = np.linalg.eigh(X.T @ F[s] @ X)
-            C = X @ c
-            f = (fermi_dirac(e, counts[s], capacity, smearing) if smearing > 0
-                 else aufbau(e, counts[s], capacity))
-            Cs.append(C)
-            es.append(e)
-            fs.append(f)
-        return Cs, es, fs
-
-    def density(Cs, fs):
-        return np.array([(C * f) @ C.T for C, f in zip(Cs, fs)])
-
-    def commutators(F, D):
-        return np.array([X.T @ (F[s] @ D[s] @ S - S @ D[s] @ F[s]) @ X for s in range(ns)])
-
-    F0, guess_used = guess_fock(guess, hcore, geom, bog)
-    F_guess = np.array([F0] * ns)
-    Cs, es, fs = diagonalise(F_guess)
-    D = density(Cs, fs)
+    orb = _Orbitals(p, one)
+    F0, guess_used = guess_fock(guess, one.hcore, p.geom, bog)
+    F_guess = np.array([F0] * p.ns)
     t_guess = time.perf_counter()
-
     if coulomb_fitting is None:  # exact J is cheap for small bases; fitting pays from ~100 functions
-        coulomb_fitting = nao >= FITTING_MIN_FUNCTIONS
-    fock = _FockBuilder(bset, func, bog, hcore, T, Vn, restricted, fitting=coulomb_fitting)
-    mixer = _FockDIIS(diis_size)
-    history: list[IterationRecord] = []
-    e_old = None
-    converged = False
-    best, since_best = np.inf, 0
-    corrected_steps = 0
-    first_step_mix = FIRST_STEP_MIX
-    fallback_left = 0
-    F_in_prev = None
-    t_diag = 0.0
-    parts = None
-    for it in range(1, max_iterations + 1):
-        F, parts = fock(D)
-        energy = sum(parts.values()) + e_nn
-        err = commutators(F, D)
-        gnorm = float(np.abs(err).max())
-        dE = energy - e_old if e_old is not None else np.inf
-        history.append(IterationRecord(it, energy, float(dE) if np.isfinite(dE) else float("nan"), gnorm))
-        exact_now = fock.mode == "exact"
-        if fock.mode == "fit" and (gnorm < fit_switch or it >= max_iterations // 2):
-            exact_now = True
-        if fock.mode == "corrected":
-            corrected_steps += 1
-            if (gnorm < 0.3 * gradient_tolerance and abs(dE) < 0.3 * energy_tolerance) or corrected_steps >= 8:
-                exact_now = True
-        if exact_now and fock.mode != "exact":
-            # exact Coulomb at this density; shift the DIIS history by the change ΔF of the
-            # Fock matrix (fitted → exact) and judge convergence on the exact quantities
-            F_approx = F
-            fock.mode = "exact"
-            F, parts = fock(D)
-            energy = sum(parts.values()) + e_nn
-            err = commutators(F, D)
-            gnorm = float(np.abs(err).max())
-            mixer.shift_history(F - F_approx, commutators)
-            # dE keeps the change between this and the previous iteration measured with one
-            # and the same (approximate) operator; the exact-minus-approximate offset cancels
-            history[-1] = IterationRecord(it, energy, float(dE) if np.isfinite(dE) else float("nan"), gnorm)
-            best, since_best = np.inf, 0
-        if exact_now:
-            if abs(dE) < energy_tolerance and gnorm < gradient_tolerance:
-                converged = True
-                break
-            if fock.can_fit:
-                # continue with fitted J plus the exact correction ΔJ frozen at this density
-                fock.mode = "corrected"
-                corrected_steps = 0
-        e_old = energy
-        # --- choose the stage: DIIS, or the damped and level-shifted fallback
-        if gnorm < 0.8 * best:
-            best, since_best = gnorm, 0
-        else:
-            since_best += 1
-        if fallback_left == 0 and it > 3 and (since_best >= 6 or dE > 1e-2):
-            fallback_left = 8
-            mixer.reset()
-            best, since_best = np.inf, 0
-        t0 = time.perf_counter()
-        if fallback_left > 0:
-            fallback_left -= 1
-            beta, shift = max(damping, 0.5), max(level_shift, 0.3)
-            F_in = F if F_in_prev is None else (1 - beta) * F + beta * F_in_prev
-            if fallback_left == 0:
-                mixer.reset()
-        else:
-            F_in = mixer.step(F, err, D)
-            if it == 1 and first_step_mix > 0:
-                # the first Fock matrix overshoots (charge sloshing away from the atomic
-                # potentials); average it with the guess Fock matrix
-                F_in = (1 - first_step_mix) * F_in + first_step_mix * F_guess
-            far = gnorm > 1e-3
-            beta = damping if far else 0.0
-            shift = level_shift if far else 0.0
-            if beta > 0 and F_in_prev is not None:
-                F_in = (1 - beta) * F_in + beta * F_in_prev
-        F_in_prev = F_in
-        if shift > 0:
-            F_in = np.array([F_in[s] + shift * (S - S @ D[s] @ S / capacity) for s in range(ns)])
-        Cs, es, fs = diagonalise(F_in)
-        D = density(Cs, fs)
-        t_diag += time.perf_counter() - t0
-    if not converged:
-        raise ConvergenceError(
-            f"SCF did not converge in {max_iterations} iterations "
-            f"(energy tolerance {energy_tolerance:g} Ha, gradient tolerance {gradient_tolerance:g})",
-            history)
-
-    # --- analysis of the converged density D (input of the last iteration)
-    Cs, es, fs = diagonalise(F)
-    Dtot = D.sum(axis=0)
-    labels = ("restricted",) if restricted else ("alpha", "beta")
-    orbitals = tuple(MolecularOrbital(labels[s], i, float(es[s][i]), float(fs[s][i]))
-                     for s in range(ns) for i in range(len(es[s])))
-    occ_e = [e for s in range(ns) for e, f in zip(es[s], fs[s]) if f > 0.5 * capacity]
-    vir_e = [e for s in range(ns) for e, f in zip(es[s], fs[s]) if f <= 0.5 * capacity]
-    homo = float(max(occ_e)) if occ_e else None
-    lumo = float(min(vir_e)) if vir_e else None
-    gap = lumo - homo if homo is not None and lumo is not None else None
-    pop = np.einsum("ij,ji->i", Dtot, S)
-    natm = geom.natom
-    charges = np.array(geom.numbers, dtype=float) - np.bincount(bset.ao_atom, weights=pop, minlength=natm)
-    r_ints = mol.intor_symmetric("int1e_r", comp=3)
-    dip = np.array(geom.numbers, dtype=float) @ geom.coordinates - np.einsum("kij,ji->k", r_ints, Dtot)
-    if restricted:
-        s2 = 0.0
-    else:
-        s2 = spin_square(tuple(Cs), tuple(fs), S)
-    comps = EnergyComponents(nuclear_repulsion=e_nn, **parts)
-    t_end = time.perf_counter()
+        coulomb_fitting = p.bset.nao >= FITTING_MIN_FUNCTIONS
+    fock = _FockBuilder(p.bset, p.func, bog, one.hcore, one.T, one.Vn, p.restricted, fitting=coulomb_fitting)
+    out = _iterate(p, one, orb, fock, F_guess, fit_switch)
     timings = {
         "setup": t_setup - t_start,
         "grid": t_grid - t_setup,
         "guess": t_guess - t_grid,
         "coulomb_exchange": fock.time_jk + fock.time_fit_setup,
         "exchange_correlation": fock.time_xc,
-        "diagonalisation": t_diag,
-        "total": t_end - t_start,
+        "diagonalisation": out.t_diag,
     }
+    extra = {"basis": basis if isinstance(basis, (str, dict)) else str(basis), "guess": guess_used,
+             "coulomb_fitting": bool(coulomb_fitting), "fit_switch": float(fit_switch)}
+    return _analyse(p, one, orb, out, mgrid, extra, timings, t_start)
+
+
+def _analyse(p: _Problem, one: _OneElectron, orb: _Orbitals, out: _Outcome, mgrid, extra: dict,
+             timings: dict, t_start: float) -> MoleculeResult:
+    """Orbitals, populations, dipole and ⟨S²⟩ of the converged density (input of the last iteration)."""
+    Cs, es, fs = orb.diagonalise(out.F)
+    D, S, geom, bset = out.D, one.S, p.geom, p.bset
+    Dtot = D.sum(axis=0)
+    labels = ("both",) if p.restricted else ("alpha", "beta")
+    orbitals = tuple(MolecularOrbital(labels[s], i, float(es[s][i]), float(fs[s][i]))
+                     for s in range(p.ns) for i in range(len(es[s])))
+    occ_e = [e for s in range(p.ns) for e, f in zip(es[s], fs[s]) if f > 0.5 * p.capacity]
+    vir_e = [e for s in range(p.ns) for e, f in zip(es[s], fs[s]) if f <= 0.5 * p.capacity]
+    homo = float(max(occ_e)) if occ_e else None
+    lumo = float(min(vir_e)) if vir_e else None
+    gap = lumo - homo if homo is not None and lumo is not None else None
+    pop = np.einsum("ij,ji->i", Dtot, S)
+    charges = np.array(geom.numbers, dtype=float) - np.bincount(bset.ao_atom, weights=pop, minlength=geom.natom)
+    r_ints = bset.mol.intor_symmetric("int1e_r", comp=3)
+    dip = np.array(geom.numbers, dtype=float) @ geom.coordinates - np.einsum("kij,ji->k", r_ints, Dtot)
+    s2 = 0.0 if p.restricted else spin_square(tuple(Cs), tuple(fs), S)
+    comps = EnergyComponents(nuclear_repulsion=one.e_nn, **out.parts)
+    warnings = []
+    if p.options.smearing > 0:
+        warnings.append(f"Fermi-Dirac smearing of {p.options.smearing:g} Ha: fractional occupations, the "
+                        "energy is that of the smeared (ensemble) state")
+    timings = dict(timings, total=time.perf_counter() - t_start)
     settings = {
-        "ks1d_version": __version__,
-        "basis": basis if isinstance(basis, (str, dict)) else str(basis),
+        "basis": extra["basis"],
         "basis_per_element": bset.description,
-        "xc": func.to_dict(),
-        "grid_level": lvl.name,
-        "guess": guess_used,
-        "max_iterations": int(max_iterations),
-        "energy_tolerance": float(energy_tolerance),
-        "gradient_tolerance": float(gradient_tolerance),
-        "smearing": float(smearing),
-        "level_shift": float(level_shift),
-        "damping": float(damping),
-        "diis_size": int(diis_size),
-        "coulomb_fitting": bool(coulomb_fitting),
-        "fit_switch": float(fit_switch),
-        "integrated_electrons": [float(x) for x in fock.last_electrons],
+        "xc": p.func.to_dict(),
+        "grid_level": p.lvl.name,
+        "guess": extra["guess"],
+        "scf": p.options.to_dict(),
+        "coulomb_fitting": extra["coulomb_fitting"],
+        "fit_switch": extra["fit_switch"],
+        "integrated_electrons": [float(x) for x in out.fock.last_electrons],
     }
     return MoleculeResult(
-        total_energy=float(energy), converged=True, iterations=len(history), orbitals=orbitals,
-        components=comps, homo_energy=homo, lumo_energy=lumo, homo_lumo_gap=gap,
+        total_energy=float(out.energy), components=comps, converged=True, iterations=len(out.history),
+        history=tuple(out.history), spin="restricted" if p.restricted else "polarized",
+        multiplicity=multiplicity_of(p.n_alpha, p.n_beta), n_alpha=int(p.n_alpha), n_beta=int(p.n_beta),
+        charge=int(round(geom.nuclear_charge - p.n_alpha - p.n_beta)), functional=p.func.to_dict(),
+        warnings=tuple(warnings), error_estimate=None, version=__version__, settings=settings, timings=timings,
+        orbitals=orbitals, homo_energy=homo, lumo_energy=lumo, homo_lumo_gap=gap,
         mulliken_charges=tuple(float(q) for q in charges), dipole=tuple(float(x) for x in dip),
-        spin_square=s2, charge=int(charge), multiplicity=int(multiplicity), restricted=bool(restricted),
-        n_alpha=int(n_alpha), n_beta=int(n_beta), geometry=geom.to_dict(), basis_functions=nao,
-        grid_points=mgrid.size, history=tuple(history), timings=timings, settings=settings)
+        spin_square=s2, geometry=geom.to_dict(), basis_functions=bset.nao, grid_points=mgrid.size)

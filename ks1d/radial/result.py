@@ -1,19 +1,21 @@
 """Result objects of the radial atomic solver."""
 from __future__ import annotations
 
-from dataclasses import asdict, dataclass, field
+from dataclasses import dataclass, field
 from typing import Any
 
 import numpy as np
 
 from ..occupations import L_LETTERS
+from ..results import EnergyComponents
+from ..serialize import plain
 from .density import shell_density
 from .mesh import RadialMesh
 
 
 @dataclass(frozen=True)
 class Orbital:
-    """One radial sub-shell orbital: n, l, spin ("up", "down" or "both"), occupation, energy (hartree)."""
+    """One radial sub-shell orbital: n, l, spin channel ("alpha", "beta" or "both"), occupation, energy (hartree)."""
 
     n: int
     l: int
@@ -78,16 +80,16 @@ class RadialData:
 
 @dataclass(frozen=True, eq=False)
 class AtomResult:
-    """A converged (or best-effort) spherical atom.
+    """A converged (or best-effort) spherical atom; the shared result vocabulary is in :mod:`ks1d.results`.
 
-    Energies in hartree.  ``components`` holds kinetic, nuclear_attraction,
-    hartree, exchange_correlation (semilocal part) and exact_exchange.
-    ``virial_ratio`` is −V/T; ``virial_residual`` is the scaling-virial
-    defect (2T + V_ne + E_H + dE_xc[ρ_λ]/dλ)/|E|, zero for an exact
-    solution of any functional; ``gauss_law_error`` is |∫ρ − N|;
-    ``error_estimate`` estimates the numerical error of ``total_energy``
-    (refined-mesh difference plus the last SCF energy change; None when not
-    requested).
+    Energies in hartree.  ``components`` is an :class:`~ks1d.results.EnergyComponents`
+    (nuclear_repulsion = 0).  ``spin`` is "restricted" or "polarized"; ``multiplicity``
+    is 2S+1 from N_α − N_β.  ``virial_ratio`` is −V/T; ``virial_residual`` is the
+    scaling-virial defect (2T + V_ne + E_H + dE_xc[ρ_λ]/dλ)/|E|, zero for an exact
+    solution of any functional; ``gauss_law_error`` is |∫ρ − N|; ``error_estimate``
+    estimates the numerical error of ``total_energy`` (refined-mesh difference plus the
+    last SCF energy change; None when not requested), ``mesh_error_estimate`` is its
+    refined-mesh part alone.
     """
 
     element: str
@@ -96,9 +98,12 @@ class AtomResult:
     xc: str
     functional: dict
     spin: str
+    multiplicity: float
+    n_alpha: float
+    n_beta: float
     configuration: str
     total_energy: float
-    components: dict
+    components: EnergyComponents
     orbitals: tuple
     converged: bool
     iterations: int
@@ -107,6 +112,7 @@ class AtomResult:
     virial_residual: float
     gauss_law_error: float
     error_estimate: float | None
+    mesh_error_estimate: float | None
     warnings: tuple
     settings: dict
     version: str
@@ -127,6 +133,7 @@ class AtomResult:
         return float(self.Z - self.charge)
 
     def to_dict(self, include_radial: bool = False) -> dict[str, Any]:
+        """Strict-JSON-ready dict: the field names are the keys (``radial`` only on request)."""
         d = {
             "element": self.element,
             "Z": self.Z,
@@ -134,18 +141,22 @@ class AtomResult:
             "xc": self.xc,
             "functional": dict(self.functional),
             "spin": self.spin,
+            "multiplicity": self.multiplicity,
+            "n_alpha": self.n_alpha,
+            "n_beta": self.n_beta,
             "configuration": self.configuration,
             "total_energy": self.total_energy,
-            "components": dict(self.components),
+            "components": self.components.to_dict(),
             "orbitals": [o.to_dict() for o in self.orbitals],
             "homo_energy": self.homo_energy,
             "converged": self.converged,
             "iterations": self.iterations,
-            "history": [asdict(h) for h in self.history],
+            "history": [h.to_dict() for h in self.history],
             "virial_ratio": self.virial_ratio,
             "virial_residual": self.virial_residual,
             "gauss_law_error": self.gauss_law_error,
             "error_estimate": self.error_estimate,
+            "mesh_error_estimate": self.mesh_error_estimate,
             "warnings": list(self.warnings),
             "settings": dict(self.settings),
             "version": self.version,
@@ -153,5 +164,4 @@ class AtomResult:
         }
         if include_radial and self.radial is not None:
             d["radial"] = self.radial.to_dict()
-        return d
-
+        return plain(d)

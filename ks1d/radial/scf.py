@@ -39,13 +39,14 @@ from dataclasses import dataclass, replace
 import numpy as np
 import scipy.linalg as sl
 
-from .. import __version__
+from .._version import __version__
 from ..elements import element as _element
 from ..errors import (ConfigurationError, ConvergenceError, IterationRecord, SettingsError, SpinError,
                       UnsupportedFunctional)
 from ..mixing import PulayMixer
-from ..threads import one_blas_thread
 from ..occupations import L_LETTERS, Configuration, build_configuration
+from ..results import EnergyComponents, SCFOptions, multiplicity_of
+from ..threads import one_blas_thread
 from ..xc import Functional, evaluate_xc, resolve_functional
 from .exchange import ExchangeBuilder, average_configuration_weights, wigner3j_zero
 from .density import FOUR_PI, shell_density, shell_density_derivative, shell_tau
@@ -63,23 +64,15 @@ PRECISION: dict[str, MeshSpec] = {
 }
 
 
-@dataclass(frozen=True)
-class SCFSettings:
-    """Convergence thresholds and mixing of the atomic SCF."""
+#: SCF defaults of the radial solver (see :class:`ks1d.results.SCFOptions`): the residual is
+#: ∫|ρ_out − ρ_in| d³r in electrons; damping 0.5 is a Pulay/Anderson step x + ½ r.
+ATOM_SCF_DEFAULTS = SCFOptions(max_iterations=150, energy_tolerance=1e-10, residual_tolerance=1e-8,
+                               damping=0.5, history=8)
+#: the options a radial-solver ConvergenceError may suggest: (SCFOptions field, CLI flag)
+ATOM_REMEDIES = (("damping", "--damping"), ("max_iterations", "--max-iterations"))
 
-    max_iterations: int = 150
-    energy_tol: float = 1e-10
-    density_tol: float = 1e-8
-    mixing: float = 0.5
-    history: int = 8
-
-    def __post_init__(self):
-        if self.max_iterations < 1:
-            raise SettingsError(f"max_iterations must be positive, got {self.max_iterations}")
-        if not 0 < self.mixing <= 1:
-            raise SettingsError(f"mixing must lie in (0, 1], got {self.mixing}")
-        if self.energy_tol <= 0 or self.density_tol <= 0:
-            raise SettingsError("convergence thresholds must be positive")
+#: orbital spin-channel names by the number of spin channels (ks1d.results.SPIN_CHANNELS)
+SPIN_NAMES = {1: ("both",), 2: ("alpha", "beta")}
 
 
 def thomas_fermi_potential(Z: float, r: np.ndarray, charge: float = 0.0) -> np.ndarray:
@@ -432,7 +425,7 @@ class AtomicProblem:
 
         exact_exchange = a Σ_σ [−½ Σ_ab Σ_k w^k_ab R^k(ab; ba)] (a: exact-exchange fraction);
         the open shells' Coulomb energy beyond J[ρ_spherical], a Σ_σ ½ Σ_k j^k F^k(aa), is part of
-        "hartree" (see ks1d.radial.exchange.average_configuration_weights).
+        "coulomb" (see ks1d.radial.exchange.average_configuration_weights).
         """
         m = self.mesh
         kin = exx = e_h_open = 0.0
@@ -462,7 +455,7 @@ class AtomicProblem:
         else:
             v_h, e_xc, e_h = np.zeros_like(rho), 0.0, 0.0
             xcv = evaluate_xc(resolve_functional("hf"), x[0].reshape(self.ns, -1))
-        return {"kinetic": float(kin), "nuclear_attraction": float(e_ne), "hartree": float(e_h),
+        return {"kinetic": float(kin), "nuclear_attraction": float(e_ne), "coulomb": float(e_h),
                 "exchange_correlation": e_xc, "exact_exchange": float(exx),
                 "total": float(kin + e_ne + e_h + e_xc + exx), "_v_h": v_h, "_xc": xcv}
 
@@ -485,7 +478,7 @@ class AtomicProblem:
     def state_from(self, radial: RadialData) -> np.ndarray:
         """State of a previous solution's orbitals, L²-projected onto this mesh (for restarts)."""
         m = self.mesh
-        names = ("up", "down") if self.ns == 2 else ("both",)
+        names = SPIN_NAMES[self.ns]
         orbitals = {}
         for ch in self.channels:
             C = np.zeros((m.size, ch.count))
@@ -519,13 +512,16 @@ class AtomicProblem:
         return (vals[0] - vals[1]) / (2 * h)
 
 
-def run_scf(problem: AtomicProblem, settings: SCFSettings, charge: float, start: np.ndarray | None = None):
+def run_scf(problem: AtomicProblem, settings: SCFOptions, charge: float, start: np.ndarray | None = None):
     """Iterate to self-consistency; returns (orbitals, energy dict, state, history, converged)."""
     m = problem.mesh
     x_in = problem.initial_state(charge) if start is None else start
     weights = np.zeros_like(x_in)  # DIIS metric on the density residual only
     weights[:m.r.size * problem.ns] = np.broadcast_to(FOUR_PI * m.r**2 * m.w, (problem.ns,) + m.r.shape).ravel()
-    mixer = PulayMixer(alpha=settings.mixing, history=settings.history, linear_steps=1, weights=weights)
+    # the Pulay step factor α = 1 − damping, rounded so that damping 0.8 gives α = 0.2 exactly (not
+    # 0.19999999999999996): stalled SCFs (r2SCAN alkali atoms) are sensitive to the last bit
+    alpha = round(1.0 - settings.damping, 12)
+    mixer = PulayMixer(alpha=alpha, history=settings.history, linear_steps=1, weights=weights)
     history: list[IterationRecord] = []
     e_prev = np.inf
     for it in range(1, settings.max_iterations + 1):
@@ -540,7 +536,7 @@ def run_scf(problem: AtomicProblem, settings: SCFSettings, charge: float, start:
         history.append(IterationRecord(it, en["total"], float(de) if np.isfinite(de) else float("nan"), res))
         if not np.isfinite(en["total"]) or not np.isfinite(res):
             break
-        if abs(de) < settings.energy_tol and res < settings.density_tol:
+        if abs(de) < settings.energy_tolerance and res < settings.residual_tolerance:
             return orbitals, en, dens_out, history, True
         e_prev = en["total"]
         x_in = mixer.step(x_in, dx)
@@ -569,7 +565,7 @@ def _anion_spec(spec: MeshSpec, charge: float) -> MeshSpec:
 
 @one_blas_thread
 def solve_atom(element, xc: str = "lda", charge: float = 0, spin="polarized", config: str | None = None, *,
-               precision: str = "normal", mesh: MeshSpec | None = None, scf: SCFSettings | None = None,
+               precision: str = "normal", mesh: MeshSpec | None = None, scf: SCFOptions | dict | None = None,
                estimate_error: bool = True, raise_on_failure: bool = True,
                electron_interaction: bool = True, open_shell_exchange: str = "average") -> AtomResult:
     """Solve the Kohn–Sham equations of a spherical atom to the basis-set limit.
@@ -608,29 +604,30 @@ def solve_atom(element, xc: str = "lda", charge: float = 0, spin="polarized", co
         mesh = _anion_spec(PRECISION[precision], charge)
     if open_shell_exchange not in ("average", "ensemble"):
         raise SettingsError(f"open_shell_exchange must be 'average' or 'ensemble', got {open_shell_exchange!r}")
-    settings = scf or SCFSettings()
+    settings = SCFOptions.coerce(scf).resolved(ATOM_SCF_DEFAULTS, "radial solver", ("level_shift", "smearing"))
     problem = AtomicProblem(el.Z, cfg, func, mesh, electron_interaction, open_shell_exchange)
     orbitals, en, x, history, converged = run_scf(problem, settings, charge)
     if not converged and raise_on_failure:
         raise ConvergenceError(
             f"SCF for {el.symbol} ({func.name}, charge {charge:+g}, {cfg.label()}) did not converge in "
-            f"{len(history)} iterations", history)
+            f"{len(history)} iterations", history, ATOM_REMEDIES)
     t_scf = time.perf_counter() - t0
 
-    error = None
+    error = mesh_error = None
     if estimate_error and converged:
         fine = AtomicProblem(el.Z, cfg, func, _refined(mesh), electron_interaction, open_shell_exchange)
         start = fine.state_from(_radial_data(problem, orbitals, en, x))
         _, en_f, _, _, conv_f = run_scf(fine, settings, charge, start)
         if conv_f:
-            error = abs(en_f["total"] - en["total"]) + abs(history[-1].delta_energy)
+            mesh_error = abs(en_f["total"] - en["total"])
+            error = mesh_error + abs(history[-1].delta_energy)
     return _make_result(el, charge, func, spin, cfg, problem, orbitals, en, x, history, converged,
-                        error, settings, mesh, {"scf": t_scf, "total": time.perf_counter() - t0})
+                        error, mesh_error, settings, mesh, {"scf": t_scf, "total": time.perf_counter() - t0})
 
 
 def _radial_data(problem: AtomicProblem, orbitals: dict, en: dict, x: np.ndarray) -> RadialData:
     m = problem.mesh
-    spin_names = ("up", "down") if problem.ns == 2 else ("both",)
+    spin_names = SPIN_NAMES[problem.ns]
     coeffs, us = {}, {}
     for ch in problem.channels:
         C, _ = orbitals[(ch.spin, ch.l)]
@@ -645,9 +642,9 @@ def _radial_data(problem: AtomicProblem, orbitals: dict, en: dict, x: np.ndarray
 
 
 def _make_result(el, charge, func, spin, cfg, problem, orbitals, en, x, history, converged, error,
-                 settings, mesh, timings) -> AtomResult:
+                 mesh_error, settings, mesh, timings) -> AtomResult:
     m = problem.mesh
-    spin_names = ("up", "down") if problem.ns == 2 else ("both",)
+    spin_names = SPIN_NAMES[problem.ns]
     orbs = []
     for ch in problem.channels:
         _, eps = orbitals[(ch.spin, ch.l)]
@@ -655,12 +652,13 @@ def _make_result(el, charge, func, spin, cfg, problem, orbitals, en, x, history,
             orbs.append(Orbital(n=n, l=ch.l, spin=spin_names[ch.spin], occupation=float(f),
                                 energy=float(eps[n - ch.l - 1])))
     # sub-shells with zero electrons in one spin channel still have an orbital energy of the other
-    orbs.sort(key=lambda o: (o.spin != "up" and o.spin != "both", o.n, o.l))
-    comp = {k: v for k, v in en.items() if not k.startswith("_") and k != "total"}
-    potential = comp["nuclear_attraction"] + comp["hartree"] + comp["exchange_correlation"] + comp["exact_exchange"]
-    virial_ratio = -potential / comp["kinetic"]
+    orbs.sort(key=lambda o: (o.spin == "beta", o.n, o.l))
+    comp = EnergyComponents(kinetic=en["kinetic"], nuclear_attraction=en["nuclear_attraction"],
+                            coulomb=en["coulomb"], exchange_correlation=en["exchange_correlation"],
+                            exact_exchange=en["exact_exchange"])
+    virial_ratio = -comp.potential / comp.kinetic
     dxc = problem.scaled_xc_derivative(orbitals)
-    virial_res = (2 * comp["kinetic"] + comp["nuclear_attraction"] + comp["hartree"] + comp["exact_exchange"]
+    virial_res = (2 * comp.kinetic + comp.nuclear_attraction + comp.coulomb + comp.exact_exchange
                   + dxc) / abs(en["total"])
     gauss = abs(total_charge(m, x[0].sum(axis=0)) - problem.n_electrons)
     warnings = []
@@ -693,14 +691,17 @@ def _make_result(el, charge, func, spin, cfg, problem, orbitals, en, x, history,
                         + f" did not converge in {_INNER_MAX} sweeps in the last SCF iteration")
     if gauss > 1e-6:
         warnings.append(f"Gauss's law check: ∫ρ misses {gauss:.1e} electrons inside r_max = {m.r_max} bohr")
-    spin_label = spin if isinstance(spin, str) else f"2S={spin}"
+    spin_label = "polarized" if cfg.polarized else "restricted"
     return AtomResult(
         element=el.symbol, Z=el.Z, charge=float(charge), xc=func.name, functional=func.to_dict(),
-        spin=spin_label, configuration=cfg.label(), total_energy=float(en["total"]), components=comp,
+        spin=spin_label, multiplicity=multiplicity_of(cfg.n_up, cfg.n_down), n_alpha=float(cfg.n_up),
+        n_beta=float(cfg.n_down), configuration=cfg.label(), total_energy=float(en["total"]), components=comp,
         orbitals=tuple(orbs), converged=converged, iterations=len(history), history=tuple(history),
         virial_ratio=float(virial_ratio), virial_residual=float(virial_res), gauss_law_error=float(gauss),
-        error_estimate=None if error is None else float(error), warnings=tuple(warnings),
-        settings={"mesh": mesh.to_dict(), "basis_size": m.size, "scf": vars(settings).copy(),
+        error_estimate=None if error is None else float(error),
+        mesh_error_estimate=None if mesh_error is None else float(mesh_error), warnings=tuple(warnings),
+        settings={"mesh": mesh.to_dict(), "basis_size": m.size, "scf": settings.to_dict(),
+                  "spin_request": spin if isinstance(spin, str) else int(spin),
                   "open_shell_exchange": problem.open_shell_exchange},
         version=__version__, timings=timings, radial=_radial_data(problem, orbitals, en, x),
     )

@@ -9,7 +9,7 @@ import time
 from dataclasses import dataclass
 from typing import Any, Sequence, TextIO
 
-from .. import __version__
+from .._version import __version__
 from ..errors import InputError
 from .analysis import ReportData, analyse
 from .build import build_document

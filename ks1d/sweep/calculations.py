@@ -101,13 +101,12 @@ def atom(symbol: str, xc: str, charge: int = 0, spin: str = "polarized", config:
             "precision": precision, "options": opts}
 
     def compute():
-        from .. import solve_atom
+        from ..radial.scf import solve_atom
 
-        kwargs: dict[str, Any] = dict(xc=xc, charge=charge, spin=spin, precision=precision, **opts)
-        if isinstance(kwargs.get("scf"), dict):  # SCF settings as a JSON table, e.g. {"mixing": 0.2}
-            from ..radial.scf import SCFSettings
+        from ..results import split_scf_options
 
-            kwargs["scf"] = SCFSettings(**kwargs["scf"])
+        scf, rest = split_scf_options(opts)  # SCF settings as a JSON table, e.g. {"damping": 0.8}
+        kwargs: dict[str, Any] = dict(xc=xc, charge=charge, spin=spin, precision=precision, scf=scf, **rest)
         if config is not None:
             kwargs["config"] = config
         return _summary(solve_atom(symbol, **kwargs))
@@ -123,9 +122,11 @@ def molecule(xyz: str, xc: str, basis: str, charge: int = 0, multiplicity: int =
             "options": opts}
 
     def compute():
-        from .. import solve_molecule
+        from ..gaussian.scf import solve_molecule
+        from ..results import split_scf_options
 
+        scf, rest = split_scf_options(opts)
         return _summary(solve_molecule(xyz, basis=basis, xc=xc, charge=charge, multiplicity=multiplicity,
-                                       **opts))
+                                       scf=scf, **rest))
 
     return _memoised("molecule", args, compute)

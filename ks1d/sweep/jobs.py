@@ -12,7 +12,7 @@ import json
 from dataclasses import dataclass, field
 from typing import Any
 
-from .. import __version__
+from .._version import __version__
 from .systems import System
 
 

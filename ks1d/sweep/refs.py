@@ -16,7 +16,8 @@ import re
 from dataclasses import dataclass
 from typing import Any, Sequence
 
-from .. import __version__, elements
+from .. import elements
+from .._version import __version__
 from ..errors import InputError
 from .jobs import Job, freeze_settings
 from .systems import System, atom_multiplicity

@@ -191,15 +191,21 @@ def _settings(where: str, table: dict[str, Any], base: dict[str, Any]) -> dict[s
 
 
 def _solver_keywords(table: str) -> set[str]:
-    """Keyword options of solve_atom / solve_molecule that a spec may pass through (TOML-expressible ones)."""
+    """Keyword options of solve_atom / solve_molecule that a spec may pass through (TOML-expressible ones),
+    with the SCF options (:class:`ks1d.results.SCFOptions`) given flat in the same table."""
     import inspect
 
-    from .. import solve_atom, solve_molecule
+    from ..gaussian.scf import solve_molecule
+    from ..radial.scf import solve_atom
+    from ..results import SCFOptions
 
-    fn, managed = ((solve_atom, {"element", "xc", "charge", "spin", "config", "precision", "mesh", "scf"})
-                   if table == "atom_options" else
-                   (solve_molecule, {"geometry", "basis", "xc", "charge", "multiplicity"}))
-    return {n for n in inspect.signature(fn).parameters if n not in managed}
+    if table == "atom_options":
+        fn, managed = solve_atom, {"element", "xc", "charge", "spin", "config", "precision", "mesh", "scf"}
+        scf = set(SCFOptions.names()) - {"level_shift", "smearing"}
+    else:
+        fn, managed = solve_molecule, {"geometry", "basis", "xc", "charge", "multiplicity", "scf"}
+        scf = set(SCFOptions.names())
+    return {n for n in inspect.signature(fn).parameters if n not in managed} | scf
 
 
 def _system(where: str, item: Any, base_dir: str) -> list[System]:

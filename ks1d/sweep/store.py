@@ -23,7 +23,7 @@ import time
 from dataclasses import dataclass
 from typing import Any, Iterable, Iterator
 
-from .. import __version__
+from .._version import __version__
 from ..errors import InputError
 from .jobs import Job
 

@@ -60,7 +60,7 @@ EV = units.HARTREE_TO_EV
 #: a density tolerance of 1e-5 electrons (∫|Δρ|), at which the energy from the output orbitals is still
 #: exact to second order (≲1e-9 Ha).  It catches SCFs whose energy has converged while the density
 #: residual stalls (r2SCAN for alkali atoms, see DEVELOPERS.md).
-RETRY_SCF = {"mixing": 0.2, "history": 8, "max_iterations": 300, "density_tol": 1e-5}
+RETRY_SCF = {"damping": 0.8, "history": 8, "max_iterations": 300, "residual_tolerance": 1e-5}
 
 
 def _atom_energy(c, label: str, **kw) -> dict[str, Any]:
@@ -105,7 +105,7 @@ def _gaussian_atom(c, label: str, symbol: str, charge: int, basis: str, smearing
         summary, dt = calculations.molecule(f"1\n{symbol}\n{symbol} 0 0 0\n", c.functional, basis, charge=charge,
                                             multiplicity=mult,
                                             options={"smearing": smearing,
-                                                     "gradient_tolerance": SB_GRADIENT_TOLERANCE})
+                                                     "residual_tolerance": SB_GRADIENT_TOLERANCE})
     except Exception as exc:
         if not hasattr(exc, "sweep_step"):
             exc.sweep_step = label  # type: ignore[attr-defined]

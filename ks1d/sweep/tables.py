@@ -16,7 +16,7 @@ import json
 import os
 from typing import Any, Sequence
 
-from .. import __version__
+from .._version import __version__
 from .results import FailureRow, ResultRow, functionals_of, ordered, systems_of
 from .statistics import ErrorStatistics
 

@@ -41,7 +41,8 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 from typing import Any
 
-from .. import __version__, units
+from .. import units
+from .._version import __version__
 from ..elements import element as _element
 from ..errors import InputError
 
@@ -145,7 +146,7 @@ def atom_basis_error(symbol, basis: str, xc: str = "pbe", precision: str = "norm
     spherical = spherical_determinant(el.symbol)
     smearing = 0.0 if spherical else SPHERICAL_SMEARING
     res = solve_molecule(f"1\n{el.symbol}\n{el.symbol} 0 0 0\n", basis=basis, xc=xc, multiplicity=mult,
-                         grid=grid, smearing=smearing)
+                         grid=grid, scf={"smearing": smearing})
     warnings = []
     if smearing:
         fractional = [o.occupation for o in res.orbitals if 1e-6 < o.occupation < 1 - 1e-6]

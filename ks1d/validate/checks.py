@@ -39,13 +39,16 @@ Which species enter the IP/EA checks, and why:
 """
 from __future__ import annotations
 
+from ..serialize import dumps
+
 import json
 import time
 from contextlib import nullcontext
 from dataclasses import asdict, dataclass, field
 from typing import Callable
 
-from .. import __version__, threads, units
+from .. import threads, units
+from .._version import __version__
 from ..elements import atomic_number
 from ..errors import InputError
 from ..reference import reference_table, reference_value
@@ -110,7 +113,7 @@ class SuiteResult:
                 "checks": [c.to_dict() for c in self.checks]}
 
     def to_json(self) -> str:
-        return json.dumps(self.to_dict())
+        return dumps(self.to_dict())
 
 
 def _compare(name, group, value, reference, tolerance, unit, source, note="", seconds=0.0,

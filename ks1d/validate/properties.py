@@ -34,7 +34,8 @@ from dataclasses import asdict, dataclass, field
 from typing import Any
 
 from ..occupations import ground_state_multiplicity  # noqa: F401  (re-exported)
-from .. import __version__, units
+from .. import units
+from .._version import __version__
 from ..elements import element as _element
 from ..errors import ConfigurationError, SpinError
 
@@ -187,8 +188,10 @@ def atom_electron_affinity(element, xc: str = "pbe", charge: int = 0,
 # --------------------------------------------------------------- molecules (Gaussian)
 def _molecule_species(geom, label, basis, xc, charge, multiplicity, options) -> SpeciesEnergy:
     from ..gaussian.scf import solve_molecule
+    from ..results import split_scf_options
 
-    res = solve_molecule(geom, basis=basis, xc=xc, charge=charge, multiplicity=multiplicity, **options)
+    scf, rest = split_scf_options(options)
+    res = solve_molecule(geom, basis=basis, xc=xc, charge=charge, multiplicity=multiplicity, scf=scf, **rest)
     return SpeciesEnergy(label, charge, multiplicity, res.total_energy, res.homo_energy,
                          f"{res.n_alpha} alpha, {res.n_beta} beta", res.converged)
 

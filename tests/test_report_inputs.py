@@ -10,7 +10,7 @@ import pytest
 
 from ks1d.errors import BasisError, InputError, UnknownFunctional
 from ks1d.report import StructureError, plan_report, read_structure
-from ks1d.report.structure import bonded_pairs, covalent_radius, parse_structure
+from ks1d.structure import bonded_pairs, covalent_radius, parse_xyz_text
 
 WATER = "3\nwater, experimental geometry\nO 0.0 0.0 0.1173\nH 0.0 0.7572 -0.4692\nH 0.0 -0.7572 -0.4692\n"
 
@@ -28,7 +28,7 @@ def test_covalent_radii_are_cordero_2008():
 def test_water_has_o_h_bonds_and_no_h_h_bond():
     # water r(OH) = 0.9572 A, r(HH) = 1.514 A (experimental geometry, NIST CCCBDB; from memory):
     # 0.96 < 1.2 (0.66 + 0.31) = 1.16 bonded; 1.51 > 1.2 (0.31 + 0.31) = 0.74 not bonded
-    st = parse_structure(WATER)
+    st = parse_xyz_text(WATER)
     assert st.elements == ("O", "H")
     assert st.bonded_pairs() == (("H", "O"),)
 
@@ -38,26 +38,26 @@ def test_extended_xyz_columns_and_a_bond_across_the_cell_face():
     # the cell (> 1.2 (1.66 + 1.02) = 3.22 A, Cordero radii) but 2.7 A apart through the periodic x face
     text = ('2\nLattice="6.0 0 0 0 20.0 0 0 0 20.0" Properties=charge:R:1:species:S:1:pos:R:3 pbc="T T T"\n'
             "0.9 Na 0.3 0.0 0.0\n-0.9 Cl 3.6 0.0 0.0\n")
-    st = parse_structure(text, "nacl.extxyz")
+    st = parse_xyz_text(text, "nacl.extxyz")
     assert st.symbols == ("Na", "Cl")
     assert np.allclose(st.positions[1], [3.6, 0, 0])
     assert st.bonded_pairs() == (("Na", "Cl"),)
     # the same atoms without periodic boundaries are not bonded
-    assert bonded_pairs(st.symbols, st.positions, st.lattice, (False, False, False)) == ()
+    assert bonded_pairs(st.symbols, st.positions, st.cell, (False, False, False)) == ()
 
 
 @pytest.mark.parametrize("text, fragment", [
-    ("", "empty file"),
+    ("", "empty structure"),
     ("two\n\nH 0 0 0\n", "line 1: expected the number of atoms"),
     ("3\n\nH 0 0 0\nH 0 0 1\n", "announces 3 atoms"),
-    ("2\n\nH 0 0 0\nH 0 zero 1\n", "line 4: the coordinates"),
+    ("2\n\nH 0 0 0\nH 0 zero 1\n", "line 4: y coordinate 'zero'"),
     ("1\n\nQq 0 0 0\n", "line 3: unknown element"),
     ("1\nProperties=species:S:1:forces:R:3\nH 0 0 0\n", "lacks a 'species' or a 'pos' column"),
     ('1\nLattice="1 0 0 0 1 0"\nH 0 0 0\n', "Lattice needs 9 numbers"),
 ])
 def test_unreadable_structures_say_where_and_what(text, fragment):
     with pytest.raises(StructureError, match=fragment):
-        parse_structure(text, "bad.xyz")
+        parse_xyz_text(text, "bad.xyz", require_header=True)
 
 
 def test_structure_file_errors_name_the_file(tmp_path):
@@ -67,7 +67,7 @@ def test_structure_file_errors_name_the_file(tmp_path):
         read_structure(str(tmp_path))
     binary = tmp_path / "image.xyz"
     binary.write_bytes(b"\x89PNG\r\n\x1a\n\xff\xfe\x00")
-    with pytest.raises(StructureError, match="not a text file"):
+    with pytest.raises(StructureError, match="is a binary file"):
         read_structure(str(binary))
 
 

@@ -1,20 +1,20 @@
-"""Molecular geometries: XYZ parsing and validation.
+"""Molecular geometries: the nuclei of a molecule, in bohr, validated.
 
-The XYZ format: line 1 holds the number of atoms, line 2 a free comment,
-then one line per atom ``SYMBOL x y z`` with Cartesian coordinates in
-ångström.  Bare atom lines (no count, no comment) are accepted as well.
-Inside ks1d coordinates are stored in bohr.
+Files and XYZ text are read by the one structure reader
+(:func:`ks1d.structure.read_structure`: XYZ by ks1d, every other format through
+ASE); this module turns a :class:`~ks1d.structure.Structure` (Å) into a
+:class:`Geometry` (bohr) and rejects nuclei closer than 0.1 Å.
 """
 from __future__ import annotations
 
-import os
 from dataclasses import dataclass
 from pathlib import Path
 
 import numpy as np
 
 from ..elements import element
-from ..errors import GeometryError, UnknownElement
+from ..errors import GeometryError
+from ..structure import Structure, parse_xyz_text, read_structure
 from ..units import ANGSTROM_TO_BOHR, BOHR_TO_ANGSTROM
 
 #: Two nuclei closer than this (in ångström) are rejected as a typo.
@@ -56,58 +56,28 @@ def nuclear_repulsion(geometry: Geometry) -> float:
     return float(np.sum(Z[iu[0]] * Z[iu[1]] / d[iu]))
 
 
-def _parse_atom_line(line: str, lineno: int) -> tuple[str, int, tuple[float, float, float]]:
-    fields = line.split()
-    if len(fields) < 4:
-        raise GeometryError(f"XYZ line {lineno}: expected 'SYMBOL x y z', got {line.strip()!r}")
-    label = fields[0]
-    key: str | int = int(label) if label.isdigit() else label
-    try:
-        el = element(key)
-    except UnknownElement as exc:
-        raise GeometryError(f"XYZ line {lineno}: unknown element symbol {label!r} ({exc})") from None
-    coords = []
-    for axis, text in zip("xyz", fields[1:4]):
-        try:
-            value = float(text.replace("D", "E").replace("d", "e"))
-        except ValueError:
-            raise GeometryError(
-                f"XYZ line {lineno}: {axis} coordinate {text!r} of atom {label!r} is not a number"
-            ) from None
-        if not np.isfinite(value):
-            raise GeometryError(f"XYZ line {lineno}: {axis} coordinate of atom {label!r} is not finite")
-        coords.append(value)
-    return el.symbol, el.Z, tuple(coords)
+def geometry_from_structure(structure: Structure) -> Geometry:
+    """A :class:`Geometry` (bohr) from a :class:`~ks1d.structure.Structure` (Å); periodic ones are refused.
+
+    A molecule calculation of a periodic cell's contents is almost always a mistake; pass
+    ``structure.to_xyz()`` (or ``ks1d molecule --as-cluster``) to compute those atoms as a cluster.
+    """
+    if structure.periodic:
+        axes = "".join("abc"[i] for i, p in enumerate(structure.pbc) if p)
+        raise GeometryError(
+            f"'{structure.source}' is periodic (a cell, periodic along {axes}); the molecule solver computes "
+            "an isolated molecule — give a molecular structure, or use --as-cluster (API: "
+            "read_structure(path).to_xyz()) to compute the cell's atoms as a finite cluster")
+    numbers = tuple(element(sym).Z for sym in structure.symbols)
+    geometry = Geometry(tuple(structure.symbols), numbers,
+                        np.asarray(structure.positions, dtype=float) * ANGSTROM_TO_BOHR, structure.comment)
+    check_distances(geometry)
+    return geometry
 
 
 def parse_xyz(text: str) -> Geometry:
     """Parse XYZ text (coordinates in ångström) into a :class:`Geometry`."""
-    lines = text.strip("\n").splitlines()
-    while lines and not lines[-1].strip():
-        lines.pop()
-    if not lines:
-        raise GeometryError("empty geometry: no atoms given")
-    head = lines[0].split()
-    comment = ""
-    if len(head) == 1 and head[0].lstrip("+-").isdigit():
-        count = int(head[0])
-        if count < 1:
-            raise GeometryError(f"XYZ header gives {count} atoms; a molecule needs at least one")
-        comment = lines[1].strip() if len(lines) > 1 else ""
-        body = [(i + 3, ln) for i, ln in enumerate(lines[2:]) if ln.strip()]
-        if len(body) != count:
-            raise GeometryError(
-                f"XYZ header announces {count} atoms but {len(body)} atom lines follow"
-            )
-    else:
-        body = [(i + 1, ln) for i, ln in enumerate(lines) if ln.strip()]
-    atoms = [_parse_atom_line(ln, no) for no, ln in body]
-    symbols = tuple(a[0] for a in atoms)
-    numbers = tuple(a[1] for a in atoms)
-    xyz = np.array([a[2] for a in atoms], dtype=float) * ANGSTROM_TO_BOHR
-    geometry = Geometry(symbols, numbers, xyz, comment)
-    check_distances(geometry)
-    return geometry
+    return geometry_from_structure(parse_xyz_text(text))
 
 
 def check_distances(geometry: Geometry, min_angstrom: float = MIN_DISTANCE_ANGSTROM) -> None:
@@ -127,17 +97,12 @@ def check_distances(geometry: Geometry, min_angstrom: float = MIN_DISTANCE_ANGST
 
 
 def read_geometry(source) -> Geometry:
-    """A :class:`Geometry` from a Geometry, an XYZ file path or XYZ text."""
+    """A :class:`Geometry` from a Geometry, a Structure, a structure file (any format
+    :func:`ks1d.structure.read_structure` reads) or XYZ text."""
     if isinstance(source, Geometry):
         return source
-    if isinstance(source, Path) or (isinstance(source, str) and "\n" not in source.strip()
-                                    and (source.lower().endswith(".xyz") or os.path.exists(source))):
-        path = Path(source)
-        if not path.is_file():
-            raise GeometryError(f"geometry file '{path}' does not exist")
-        return parse_xyz(path.read_text())
-    if isinstance(source, str):
-        return parse_xyz(source)
+    if isinstance(source, (str, Path, Structure)):
+        return geometry_from_structure(read_structure(source))
     raise GeometryError(
-        f"geometry must be an XYZ file path, XYZ text or a Geometry, got {type(source).__name__}"
+        f"geometry must be a structure file path, XYZ text or a Geometry, got {type(source).__name__}"
     )

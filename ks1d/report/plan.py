@@ -25,7 +25,7 @@ from typing import Sequence
 from ..errors import InputError
 from ..sweep.jobs import Job, freeze_settings
 from ..sweep.systems import System
-from .structure import Structure, read_structure
+from ..structure import Structure, read_structure
 
 #: The default ladder: LDA, two GGAs, a meta-GGA, two global hybrids and a screened hybrid.
 DEFAULT_FUNCTIONALS = ("lda", "pbe", "pbesol", "r2scan", "pbe0", "hse06", "b3lyp")
@@ -127,7 +127,7 @@ def plan_report(elements: Sequence[str] = (), structure: str | Structure | None 
     if structure is not None:
         st = structure if isinstance(structure, Structure) else read_structure(str(structure))
         symbols = list(st.elements)
-        source = f"structure file {st.path} ({len(st.symbols)} atoms)"
+        source = f"structure file {st.source} ({len(st.symbols)} atoms)"
         pairs = list(st.bonded_pairs())
     else:
         symbols = _elements(elements)
@@ -200,5 +200,5 @@ def plan_report(elements: Sequence[str] = (), structure: str | Structure | None 
                             settings=freeze_settings({"basis": diatomic_basis, **SCAN})))
     return ReportPlan(elements=tuple(symbols), functionals=xcs, basis=basis, diatomic_basis=diatomic_basis,
                       diatomics=tuple(with_data), pairs_without_data=tuple(without), source=source,
-                      structure_path=None if st is None else st.path, skipped=tuple(skipped), jobs=tuple(jobs),
+                      structure_path=None if st is None else st.source, skipped=tuple(skipped), jobs=tuple(jobs),
                       symmetry_broken=symmetry_broken)

@@ -58,7 +58,7 @@ class System:
     def symbols(self) -> tuple[str, ...]:
         if self.is_atom:
             return (self.symbol,)
-        return tuple(line.split()[0] for line in _xyz_atom_lines(self.xyz))
+        return _structure(self.xyz).symbols
 
     @property
     def is_diatomic(self) -> bool:
@@ -173,58 +173,43 @@ def parse_atom(text: str) -> System:
 
 
 # ------------------------------------------------------------------ molecules
-def _xyz_atom_lines(xyz: str) -> list[str]:
-    lines = [ln for ln in xyz.strip().splitlines()]
-    if not lines:
-        raise GeometryError("empty XYZ geometry")
-    try:
-        n = int(lines[0].split()[0])
-    except (ValueError, IndexError):
-        raise GeometryError("an XYZ geometry starts with the atom count on its first line") from None
-    body = [ln for ln in lines[2:2 + n] if ln.strip()]
-    if len(body) != n:
-        raise GeometryError(f"XYZ geometry announces {n} atoms but has {len(body)} coordinate lines")
-    return body
+def _structure(xyz: str):
+    from ..structure import parse_xyz_text
+
+    return parse_xyz_text(xyz)
 
 
 def normalise_xyz(xyz: str) -> str:
     """Canonical XYZ text: count, empty comment, 'Sym x y z' with 8 decimals (for hashing)."""
-    rows = []
-    for ln in _xyz_atom_lines(xyz):
-        parts = ln.split()
-        if len(parts) < 4:
-            raise GeometryError(f"XYZ line '{ln.strip()}' needs a symbol and three coordinates")
-        try:
-            x, y, z = (float(v) for v in parts[1:4])
-        except ValueError:
-            raise GeometryError(f"XYZ line '{ln.strip()}' has a non-numeric coordinate") from None
-        rows.append(f"{elements.symbol(parts[0])} {x:.8f} {y:.8f} {z:.8f}")
+    st = _structure(xyz)
+    rows = [f"{sym} {x:.8f} {y:.8f} {z:.8f}" for sym, (x, y, z) in zip(st.symbols, st.positions)]
     return f"{len(rows)}\n\n" + "\n".join(rows) + "\n"
 
 
 def molecule_from_xyz_file(path: str, name: str | None = None, charge: int = 0,
                            multiplicity: int | None = None) -> System:
+    """A molecule from a structure file (any format :func:`ks1d.structure.read_structure` reads)."""
     import os
 
-    if not os.path.isfile(path):
-        raise GeometryError(f"XYZ file '{path}' does not exist")
-    with open(path, encoding="utf-8") as fh:
-        text = fh.read()
-    xyz = normalise_xyz(text)
+    from ..gaussian.geometry import geometry_from_structure
+    from ..structure import read_structure
+
+    st = read_structure(path)
+    geometry_from_structure(st)  # refuses periodic cells and overlapping nuclei, with the file named
+    xyz = normalise_xyz(st.to_xyz(comment=""))
     stem = os.path.splitext(os.path.basename(path))[0]
     return System(name=name or stem, kind="molecule", charge=int(charge), multiplicity=multiplicity,
-                  xyz=xyz, source=f"XYZ file {os.path.basename(path)}")
+                  xyz=xyz, source=f"structure file {os.path.basename(path)}")
 
 
 def bond_length(system: System) -> float:
     """Distance (Å) between the two atoms of a diatomic."""
     import math
 
-    lines = _xyz_atom_lines(system.xyz)
-    if len(lines) != 2:
-        raise GeometryError(f"'{system.name}' is not a diatomic ({len(lines)} atoms)")
-    a, b = ([float(v) for v in ln.split()[1:4]] for ln in lines)
-    return math.dist(a, b)
+    st = _structure(system.xyz)
+    if st.natom != 2:
+        raise GeometryError(f"'{system.name}' is not a diatomic ({st.natom} atoms)")
+    return math.dist(st.positions[0], st.positions[1])
 
 
 def diatomic_xyz(sym_a: str, sym_b: str, r_angstrom: float) -> str:

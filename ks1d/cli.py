@@ -19,9 +19,8 @@ COMMANDS = ("atom", "molecule", "report", "sweep", "refs", "check", "basis_error
 
 
 class _Parser(argparse.ArgumentParser):
-    def error(self, message):  # argparse's own errors also exit with 2
-        self.print_usage(sys.stderr)
-        self.exit(2, f"ks1d: error: {message}\n")
+    def error(self, message):  # argparse's own errors: one line, exit 2, like every other input error
+        self.exit(2, f"ks1d: error: {message} (see '{self.prog} --help')\n")
 
 
 def build_parser() -> argparse.ArgumentParser:
@@ -50,17 +49,21 @@ def main(argv: list[str] | None = None) -> int:
     except InputError as exc:
         print(f"ks1d: error: {exc}", file=sys.stderr)
         return 2
+    except BrokenPipeError:  # output piped into e.g. head
+        import os
+
+        os.dup2(os.open(os.devnull, os.O_WRONLY), sys.stdout.fileno())
+        return 0
+    except OSError as exc:  # a file that cannot be read or written: the user's path, not a bug
+        where = f" '{exc.filename}'" if getattr(exc, "filename", None) else ""
+        print(f"ks1d: error: cannot access{where}: {exc.strerror or exc}", file=sys.stderr)
+        return 2
     except CalculationError as exc:
         print(f"ks1d: calculation failed: {exc}", file=sys.stderr)
         return 3
     except KeyboardInterrupt:
         print("ks1d: interrupted", file=sys.stderr)
         return 130
-    except BrokenPipeError:  # output piped into e.g. head
-        import os
-
-        os.dup2(os.open(os.devnull, os.O_WRONLY), sys.stdout.fileno())
-        return 0
 
 
 if __name__ == "__main__":

@@ -35,6 +35,9 @@ from .errors import ConfigurationError, SpinError
 
 L_LETTERS = "spdf"
 _TOL = 1e-10
+#: the most negative atomic charge ks1d accepts (free atomic anions beyond −1 are unbound; −2 and −3
+#: are still solved in the anion confinement box for embedding-type studies)
+MIN_CHARGE = -3.0
 
 
 @dataclass(frozen=True)
@@ -228,8 +231,18 @@ def build_configuration(Z: int, charge: float = 0.0, spin: str | int = "polarize
     must then equal Z − charge.
     """
     el = element(Z)
+    try:
+        charge = float(charge)
+    except (TypeError, ValueError):
+        raise ConfigurationError(f"charge must be a number, got {charge!r}") from None
+    if charge != charge or charge in (float("inf"), float("-inf")):
+        raise ConfigurationError(f"charge must be a finite number, got {charge}")
     if el.Z - charge <= _TOL:
         raise ConfigurationError(f"charge {charge:+g} leaves {el.symbol} without electrons")
+    if charge < MIN_CHARGE:
+        raise ConfigurationError(
+            f"charge {charge:+g} is below {MIN_CHARGE:+g}: ks1d solves atomic anions up to {-MIN_CHARGE:g} extra "
+            "electrons (in a confinement box); more highly charged atomic anions are unbound")
     if config is None:
         shells = parse_shells(el.ground_configuration)
         if charge != 0:

@@ -2,10 +2,8 @@
 from __future__ import annotations
 
 from ..serialize import dumps
-
-import json
-
 from ..units import HARTREE_TO_EV
+from ._common import check_writable, ProgressLine, add_output_options, write_json_document
 
 
 def register(sub) -> None:
@@ -22,7 +20,7 @@ def register(sub) -> None:
     p.add_argument("--damping", type=float, default=None,
                    help="fraction of the previous SCF input kept per step, in [0, 1) (default 0.5)")
     p.add_argument("--max-iterations", type=int, default=None, help="SCF iteration limit (default 150)")
-    p.add_argument("--json", action="store_true", help="print one JSON object")
+    add_output_options(p, qcschema=True)
     p.add_argument("--radial", action="store_true", help="with --json: include density, potentials and orbitals on the mesh")
     p.set_defaults(func=run)
 
@@ -30,14 +28,26 @@ def register(sub) -> None:
 def run(args) -> int:
     from ..radial.scf import solve_atom
 
+    check_writable(args.qcschema)
     if args.restricted and args.spin is not None:
         from ..errors import SpinError
 
         raise SpinError("--restricted and --spin contradict each other; give one of them")
     spin = "restricted" if args.restricted else ("polarized" if args.spin is None else args.spin)
     scf = {k: v for k, v in (("damping", args.damping), ("max_iterations", args.max_iterations)) if v is not None}
-    res = solve_atom(args.element, xc=args.xc, charge=args.charge, spin=spin, config=args.config,
-                     precision=args.precision, estimate_error=not args.no_error_estimate, scf=scf)
+    bar = ProgressLine("atom", enabled=not args.quiet)
+    try:
+        res = solve_atom(args.element, xc=args.xc, charge=args.charge, spin=spin, config=args.config,
+                         precision=args.precision, estimate_error=not args.no_error_estimate, scf=scf,
+                         progress=bar.scf)
+    finally:
+        bar.close()
+    if args.qcschema:
+        from ..qcschema import atom_to_qcschema
+
+        write_json_document(atom_to_qcschema(res), args.qcschema)
+        if args.qcschema == "-":
+            return 0
     if args.json:
         print(dumps(res.to_dict(include_radial=args.radial)))
     else:

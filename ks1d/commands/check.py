@@ -8,7 +8,8 @@ Exit code 0 if every check passes, 1 if any fails, 2 for bad input.
 from __future__ import annotations
 
 import math
-import sys
+
+from ._common import ProgressLine
 
 
 def register(subparsers) -> None:
@@ -26,6 +27,7 @@ def register(subparsers) -> None:
                    help="run only this group (repeatable): nist, hf_limit, radial_pyscf, gaussian_pyscf, "
                         "ip_pyscf, ip_ea")
     p.add_argument("--json", action="store_true", help="print one JSON object with a 'checks' list")
+    p.add_argument("--quiet", action="store_true", help="no progress lines on stderr")
     p.set_defaults(func=run, level="quick")
 
 
@@ -89,16 +91,24 @@ def format_table(suite) -> str:
     return "\n".join(out)
 
 
-def _print_progress(c) -> None:
-    print(f"  {'ok  ' if c.passed else 'FAIL'} {c.name}", file=sys.stderr, flush=True)
-
-
 def run(args) -> int:
     from ..validate.checks import run_suite
 
     groups = tuple(args.group) if args.group else None
-    progress = _print_progress if (not args.json and sys.stderr.isatty()) else None
-    suite = run_suite(args.level, xc=args.xc, groups=groups, progress=progress)
+    bar = ProgressLine("check", enabled=not args.quiet)
+    state = {"group": ""}
+
+    def on_group(i, n, g):
+        state["group"] = f"group {i}/{n} ({g})"
+        bar.update(f"{state['group']}: running")
+
+    def progress(c):
+        bar.update(f"{state['group']}: {'ok' if c.passed else 'FAIL'} {c.name}")
+
+    try:
+        suite = run_suite(args.level, xc=args.xc, groups=groups, progress=progress, on_group=on_group)
+    finally:
+        bar.close()
     if args.json:
         print(suite.to_json())
     else:

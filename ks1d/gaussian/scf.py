@@ -355,7 +355,7 @@ class _Outcome:
 
 
 def _iterate(p: _Problem, one: _OneElectron, orb: _Orbitals, fock: "_FockBuilder", F_guess: np.ndarray,
-             fit_switch: float) -> _Outcome:
+             fit_switch: float, progress=None) -> _Outcome:
     """DIIS on the orbital gradient with the fitted → exact Coulomb policy and the fallback stage."""
     opt = p.options
     S = one.S
@@ -399,6 +399,8 @@ def _iterate(p: _Problem, one: _OneElectron, orb: _Orbitals, fock: "_FockBuilder
             # and the same (approximate) operator; the exact-minus-approximate offset cancels
             history[-1] = IterationRecord(it, energy, float(dE) if np.isfinite(dE) else float("nan"), gnorm)
             best, since_best = np.inf, 0
+        if progress is not None:
+            progress(history[-1])
         if exact_now:
             if abs(dE) < opt.energy_tolerance and gnorm < opt.residual_tolerance:
                 return _Outcome(F, D, parts, energy, history, fock, t_diag)
@@ -449,7 +451,8 @@ def _iterate(p: _Problem, one: _OneElectron, orb: _Orbitals, fock: "_FockBuilder
 def solve_molecule(geometry, basis="def2-svp", xc="pbe", charge: int = 0, multiplicity: int = 1, *,
                    spin: str | None = None, grid="default", guess: str = "atoms",
                    scf: SCFOptions | dict | None = None, ao_cache_mb: float = 1024.0,
-                   coulomb_fitting: bool | None = None, fit_switch: float = FIT_SWITCH_GRADIENT) -> MoleculeResult:
+                   coulomb_fitting: bool | None = None, fit_switch: float = FIT_SWITCH_GRADIENT,
+                   progress=None) -> MoleculeResult:
     """Self-consistent Kohn–Sham (or Hartree–Fock) ground state of a molecule.
 
     geometry: XYZ file path, XYZ text (Å) or a :class:`~ks1d.gaussian.geometry.Geometry`.
@@ -466,6 +469,7 @@ def solve_molecule(geometry, basis="def2-svp", xc="pbe", charge: int = 0, multip
     cheap iterations on J_fit[D] + (J − J_fit)[D_exact] frozen at the last
     exact build.  Convergence is only ever declared on an exact build, so
     the result carries no fitting error.
+    ``progress`` (optional) is called with every SCF :class:`~ks1d.errors.IterationRecord`.
     Raises :class:`~ks1d.errors.ConvergenceError` (with the history) if the SCF fails.
     """
     t_start = time.perf_counter()
@@ -482,7 +486,7 @@ def solve_molecule(geometry, basis="def2-svp", xc="pbe", charge: int = 0, multip
     if coulomb_fitting is None:  # exact J is cheap for small bases; fitting pays from ~100 functions
         coulomb_fitting = p.bset.nao >= FITTING_MIN_FUNCTIONS
     fock = _FockBuilder(p.bset, p.func, bog, one.hcore, one.T, one.Vn, p.restricted, fitting=coulomb_fitting)
-    out = _iterate(p, one, orb, fock, F_guess, fit_switch)
+    out = _iterate(p, one, orb, fock, F_guess, fit_switch, progress)
     timings = {
         "setup": t_setup - t_start,
         "grid": t_grid - t_setup,

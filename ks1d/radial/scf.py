@@ -512,8 +512,11 @@ class AtomicProblem:
         return (vals[0] - vals[1]) / (2 * h)
 
 
-def run_scf(problem: AtomicProblem, settings: SCFOptions, charge: float, start: np.ndarray | None = None):
-    """Iterate to self-consistency; returns (orbitals, energy dict, state, history, converged)."""
+def run_scf(problem: AtomicProblem, settings: SCFOptions, charge: float, start: np.ndarray | None = None,
+            progress=None):
+    """Iterate to self-consistency; returns (orbitals, energy dict, state, history, converged).
+
+    ``progress`` (optional) is called with each :class:`~ks1d.errors.IterationRecord`."""
     m = problem.mesh
     x_in = problem.initial_state(charge) if start is None else start
     weights = np.zeros_like(x_in)  # DIIS metric on the density residual only
@@ -534,6 +537,8 @@ def run_scf(problem: AtomicProblem, settings: SCFOptions, charge: float, start: 
         res = problem.residual_norm(dx)
         de = en["total"] - e_prev
         history.append(IterationRecord(it, en["total"], float(de) if np.isfinite(de) else float("nan"), res))
+        if progress is not None:
+            progress(history[-1])
         if not np.isfinite(en["total"]) or not np.isfinite(res):
             break
         if abs(de) < settings.energy_tolerance and res < settings.residual_tolerance:
@@ -567,7 +572,8 @@ def _anion_spec(spec: MeshSpec, charge: float) -> MeshSpec:
 def solve_atom(element, xc: str = "lda", charge: float = 0, spin="polarized", config: str | None = None, *,
                precision: str = "normal", mesh: MeshSpec | None = None, scf: SCFOptions | dict | None = None,
                estimate_error: bool = True, raise_on_failure: bool = True,
-               electron_interaction: bool = True, open_shell_exchange: str = "average") -> AtomResult:
+               electron_interaction: bool = True, open_shell_exchange: str = "average",
+               progress=None) -> AtomResult:
     """Solve the Kohn–Sham equations of a spherical atom to the basis-set limit.
 
     element: symbol, name or Z (1–92); xc: alias or libxc identifiers
@@ -584,6 +590,8 @@ def solve_atom(element, xc: str = "lda", charge: float = 0, spin="polarized", co
     see :mod:`ks1d.radial.exchange`) or "ensemble" (the fractional-occupation
     density-matrix form, which is what a Gaussian calculation with smeared,
     equal sub-shell occupations computes; used to compare with one).
+
+    ``progress`` (optional) is called with every SCF :class:`~ks1d.errors.IterationRecord`.
 
     Raises InputError subclasses for bad input and ConvergenceError (with the
     iteration history) if the SCF does not converge.
@@ -606,7 +614,7 @@ def solve_atom(element, xc: str = "lda", charge: float = 0, spin="polarized", co
         raise SettingsError(f"open_shell_exchange must be 'average' or 'ensemble', got {open_shell_exchange!r}")
     settings = SCFOptions.coerce(scf).resolved(ATOM_SCF_DEFAULTS, "radial solver", ("level_shift", "smearing"))
     problem = AtomicProblem(el.Z, cfg, func, mesh, electron_interaction, open_shell_exchange)
-    orbitals, en, x, history, converged = run_scf(problem, settings, charge)
+    orbitals, en, x, history, converged = run_scf(problem, settings, charge, progress=progress)
     if not converged and raise_on_failure:
         raise ConvergenceError(
             f"SCF for {el.symbol} ({func.name}, charge {charge:+g}, {cfg.label()}) did not converge in "

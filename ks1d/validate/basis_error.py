@@ -69,6 +69,7 @@ class AtomBasisError:
     radial_energy: float
     occupations: str  # "integer" or "spherical smearing 1e-3 Ha"
     warnings: tuple = ()
+    limit_model: str = ""  # which radial atom E(limit) is (see limit_model())
 
     @property
     def error(self) -> float:
@@ -90,7 +91,7 @@ class AtomBasisError:
         return {"element": self.element, "multiplicity": self.multiplicity, "basis_energy": self.basis_energy,
                 "radial_energy": self.radial_energy, "error": self.error, "error_mhartree": self.error_mhartree,
                 "error_ev": self.error_ev, "error_kcal_mol": self.error_kcal_mol,
-                "occupations": self.occupations, "warnings": list(self.warnings)}
+                "occupations": self.occupations, "limit_model": self.limit_model, "warnings": list(self.warnings)}
 
 
 @dataclass(frozen=True)
@@ -131,6 +132,19 @@ class BasisErrorReport:
         return d
 
 
+def limit_model(xc: str, spherical: bool) -> str:
+    """What E(limit) is: the radial spherical atom, in the exact-exchange form the Gaussian state computes."""
+    from ..xc import resolve_functional
+
+    if spherical:
+        return "radial atom, spin-polarized; every sub-shell full or empty per spin (a single determinant)"
+    if resolve_functional(xc).is_hybrid:
+        return ("radial spherical ensemble atom: equal fractional m-occupation, exact exchange in the "
+                "fractional-occupation (ensemble) form, as the smeared Gaussian atom computes it; it lies "
+                "above the default configuration-average atom of 'ks1d atom'")
+    return "radial spherical atom: equal fractional m-occupation of open sub-shells, spin-polarized"
+
+
 def atom_basis_error(symbol, basis: str, xc: str = "pbe", precision: str = "normal",
                      grid: str = "default") -> AtomBasisError:
     """ΔE of one neutral atom (see the module docstring for the spin state and occupations)."""
@@ -159,14 +173,25 @@ def atom_basis_error(symbol, basis: str, xc: str = "pbe", precision: str = "norm
         warnings.append(f"{el.symbol}: the basis energy lies below the radial limit by "
                         f"{(radial.total_energy - res.total_energy) * 1e3:.3f} mHa; the two calculations do not "
                         "describe the same state (or the molecular grid is too coarse)")
-    return AtomBasisError(el.symbol, mult, res.total_energy, radial.total_energy, occ, tuple(warnings))
+    return AtomBasisError(el.symbol, mult, res.total_energy, radial.total_energy, occ, tuple(warnings),
+                          limit_model(xc, spherical))
 
 
-def basis_error_report(elements=(), basis: str = "def2-svp", xc: str = "pbe", xyz=None,
-                       precision: str = "normal", grid: str = "default") -> BasisErrorReport:
-    """Basis-set errors of the listed atoms, or of the atoms of the molecule ``xyz`` (file or text)."""
-    if not isinstance(basis, str) or not basis.strip():
+def basis_error_report(elements=(), basis="def2-svp", xc: str = "pbe", xyz=None,
+                       precision: str = "normal", grid: str = "default", progress=None) -> BasisErrorReport:
+    """Basis-set errors of the listed atoms, or of the atoms of the molecule ``xyz`` (a structure file in
+    any format :func:`ks1d.structure.read_structure` reads, or XYZ text).
+
+    ``basis`` is a name or file, or a per-element mapping with an optional ``"default"`` key; every
+    element, the basis and the functional are checked before any calculation.  ``progress`` (optional)
+    is called with (index, count, element) before each atom.
+    """
+    from ..gaussian.basis import check_basis
+    from ..xc import resolve_functional
+
+    if not (isinstance(basis, dict) and basis) and not (isinstance(basis, str) and basis.strip()):
         raise InputError("give a basis name, e.g. --basis def2-svp")
+    resolve_functional(xc)
     molecule = None
     if xyz is not None:
         if elements:
@@ -188,7 +213,13 @@ def basis_error_report(elements=(), basis: str = "def2-svp", xc: str = "pbe", xy
             s = _element(e).symbol
             if s not in symbols:
                 symbols.append(s)
-    rows = tuple(atom_basis_error(s, basis, xc, precision, grid) for s in symbols)
+    check_basis(basis, symbols)
+    rows = []
+    for i, s in enumerate(symbols, 1):
+        if progress is not None:
+            progress(i, len(symbols), s)
+        rows.append(atom_basis_error(s, basis, xc, precision, grid))
+    rows = tuple(rows)
     warnings = [w for a in rows for w in a.warnings]
     report = BasisErrorReport(basis, xc, rows, molecule, (), {"precision": precision, "grid": grid,
                                                               "spherical_smearing": SPHERICAL_SMEARING})

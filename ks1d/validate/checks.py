@@ -359,8 +359,13 @@ GROUPS: dict[str, Callable] = {
 
 
 def run_suite(level: str = "quick", xc: str = "pbe", groups: tuple[str, ...] | None = None,
-              single_threaded: bool = True, progress: Callable[[CheckResult], None] | None = None) -> SuiteResult:
-    """Run the validation suite; bad input raises an InputError before any calculation."""
+              single_threaded: bool = True, progress: Callable[[CheckResult], None] | None = None,
+              on_group: Callable[[int, int, str], None] | None = None) -> SuiteResult:
+    """Run the validation suite; bad input raises an InputError before any calculation.
+
+    ``progress`` is called with each finished :class:`CheckResult`, ``on_group`` with
+    (index, number of groups, group name) before each group starts.
+    """
     if level not in LEVELS:
         raise InputError(f"level must be one of {', '.join(LEVELS)}, got {level!r}")
     chosen = tuple(GROUPS) if groups is None else tuple(groups)
@@ -380,7 +385,9 @@ def run_suite(level: str = "quick", xc: str = "pbe", groups: tuple[str, ...] | N
     t0 = time.perf_counter()
     checks: list[CheckResult] = []
     with (threads.single_threaded() if single_threaded else nullcontext()):
-        for g in chosen:
+        for i, g in enumerate(chosen, 1):
+            if on_group is not None:
+                on_group(i, len(chosen), g)
             for c in GROUPS[g](level, xc):
                 checks.append(c)
                 if progress is not None:

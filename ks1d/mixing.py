@@ -5,7 +5,6 @@ Fock matrix → Fock matrix) and feed the mixer the pair (x, r) with residual
 r = F(x) − x (density mixing) or an error vector such as FDS − SDF (Fock
 extrapolation).  The mixer returns the next input.
 
-* :class:`LinearMixer`: x_new = x + α r.
 * :class:`PulayMixer`: Pulay's direct inversion in the iterative subspace
   (P. Pulay, Chem. Phys. Lett. 73, 393 (1980); J. Comput. Chem. 3, 556
   (1982)), in Anderson's mixing form (D. G. Anderson, J. ACM 12, 547 (1965)):
@@ -43,21 +42,6 @@ def diis_coefficients(residuals: list[np.ndarray], weights: np.ndarray | None = 
     rhs[m] = 1.0
     sol = np.linalg.lstsq(A, rhs, rcond=1e-14)[0]
     return sol[:m]
-
-
-class LinearMixer:
-    """Simple damping x_new = x + α r."""
-
-    def __init__(self, alpha: float = 0.3):
-        if not 0.0 < alpha <= 1.0:
-            raise ValueError(f"linear mixing parameter must lie in (0, 1], got {alpha}")
-        self.alpha = alpha
-
-    def step(self, x: np.ndarray, residual: np.ndarray) -> np.ndarray:
-        return x + self.alpha * residual
-
-    def reset(self) -> None:
-        pass
 
 
 class PulayMixer:

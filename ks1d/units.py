@@ -19,11 +19,3 @@ BOHR_TO_ANGSTROM: float = _c.physical_constants["Bohr radius"][0] * 1e10
 ANGSTROM_TO_BOHR: float = 1.0 / BOHR_TO_ANGSTROM
 #: atomic unit of electric dipole moment in debye (1 D = 1e-21 / c  C m)
 AU_DIPOLE_TO_DEBYE: float = (_c.e * _c.physical_constants["Bohr radius"][0]) / (1e-21 / _c.c)
-
-
-def hartree_to_ev(e: float) -> float:
-    return e * HARTREE_TO_EV
-
-
-def ev_to_hartree(e: float) -> float:
-    return e / HARTREE_TO_EV

@@ -136,12 +136,6 @@ def _failed(name, group, exc, unit, source, tolerance, seconds) -> CheckResult:
                        f"calculation failed: {type(exc).__name__}: {msg}", float(seconds))
 
 
-def _timed(fn):
-    t0 = time.perf_counter()
-    out = fn()
-    return out, time.perf_counter() - t0
-
-
 # ------------------------------------------------------------------ groups
 def _nist(level: str) -> list[CheckResult]:
     from ..radial.scf import solve_atom

@@ -7,7 +7,11 @@ Prints, for one functional (default PBE):
    the same functional on the same density?
 2. ks1d's E_xc of its own density against an independent quadrature (4e5 log-spaced points,
    finite-difference gradients, libxc called directly through pyscf.dft.libxc);
-3. pyscf's UKS energy in even-tempered s bases of decreasing ratio against ks1d's SCF energy.
+3. pyscf's UKS energy in even-tempered s bases of decreasing ratio against ks1d's SCF energy;
+4. whether pyscf's SCF is stationary for its own energy: ks1d's occupied orbitals projected (L², in an
+   orthonormalised copy of pyscf's basis) onto pyscf's basis and evaluated with pyscf's own energy
+   functional, against pyscf's SCF energy in that same basis, and pyscf's SCF (DIIS, then its
+   second-order solver) restarted from that projected state.
 
 Usage:  python benchmarks/diag_li_gga_vs_pyscf.py [ks1d-xc pyscf-xc]     (default: pbe pbe,pbe)
 """
@@ -72,6 +76,34 @@ def independent_exc(res, pxc: str) -> float:
     return float(np.sum(exc * (rho[0] + rho[1]) * 4 * np.pi * r**3 * (x[1] - x[0])))
 
 
+def projected_state(res, mol) -> np.ndarray:
+    """Density matrices (alpha, beta) of ks1d's occupied orbitals projected onto mol's s basis (L² fit)."""
+    S = mol.intor("int1e_ovlp")
+    s, U = np.linalg.eigh(S)
+    keep = s > 1e-13
+    X = U[:, keep] / np.sqrt(s[keep])
+    x = np.linspace(np.log(1e-7), np.log(40.0), 400001)
+    r = np.exp(x)
+    w = (x[1] - x[0]) * r**3 * 4 * np.pi  # d³r = 4π r² dr, dr = r dx
+    pts = np.zeros((r.size, 3))
+    pts[:, 2] = r
+    ao = mol.eval_gto("GTOval", pts)
+    dms = []
+    for spin in ("alpha", "beta"):
+        cols = []
+        for (_n, _l, sp), (c, occ) in res.radial.coefficients.items():
+            if sp != spin or occ < 1e-12:
+                continue
+            u, _ = res.radial.mesh.values_at(c, r)
+            psi = u / (r * np.sqrt(4 * np.pi))
+            cols.append(X @ (X.T @ (ao.T @ (w * psi))))
+        C = np.array(cols).T
+        ev, V = np.linalg.eigh(C.T @ S @ C)  # Löwdin-orthonormalise the projected orbitals
+        C = C @ V @ np.diag(ev ** -0.5) @ V.T
+        dms.append(C @ C.T)
+    return np.array(dms)
+
+
 def main() -> None:
     xc, pxc = (sys.argv[1], sys.argv[2]) if len(sys.argv) > 2 else ("pbe", "pbe,pbe")
     res = ks1d.solve_atom("Li", xc=xc, estimate_error=False)
@@ -88,6 +120,19 @@ def main() -> None:
             _, m2, e = pyscf_li(pxc, lo=0.005, hi=1e8, ratio=ratio, grid=grid)
             print(f"   ratio {ratio:<4}  {m2.mol.nao:3d} functions  grid {grid[0]:4d}  "
                   f"{(e - res.total_energy) * 1e6:+8.3f}")
+    print("4. is pyscf's SCF stationary for its own energy? (uHa above ks1d)")
+    for ratio in (1.6, 1.4):
+        mol4, mf4, e4 = pyscf_li(pxc, lo=0.005, hi=1e8, ratio=ratio, grid=(800, 50))
+        dm = projected_state(res, mol4)
+        e_proj = mf4.energy_tot(dm=dm)
+        mf5 = dft.UKS(mol4)
+        mf5.xc, mf5.conv_tol = pxc, 1e-12
+        mf5.grids.atom_grid, mf5.grids.prune = (800, 50), None
+        e5 = mf5.kernel(dm0=dm)
+        e6 = mf5.newton().kernel(mf5.mo_coeff, mf5.mo_occ)
+        print(f"   ratio {ratio:<4}  pyscf SCF {(e4 - res.total_energy) * 1e6:+8.3f}  pyscf energy of the projected "
+              f"ks1d state {(e_proj - res.total_energy) * 1e6:+8.3f}  SCF restarted there {(e5 - res.total_energy) * 1e6:+8.3f}"
+              f"  then second-order {(e6 - res.total_energy) * 1e6:+8.3f}")
 
 
 if __name__ == "__main__":

@@ -39,13 +39,13 @@ def gaussian_part_vs_pyscf(outcome, functionals=("pbe", "pbe0")) -> None:
     from pyscf import dft, gto
 
     from ks1d import solve_molecule
-    from ks1d.sweep.survey import diatomic_system
+    from ks1d.sweep.properties.datasets import diatomic
 
     points = []
     for j in outcome.data.jobs:
         if j.property != "diatomic_survey" or j.functional not in functionals or j.status != "done":
             continue
-        mol = diatomic_system(j.system)
+        mol = diatomic(j.system)
         a, b = mol.symbols
         for c in j.calculations:
             if " at R = " in c["label"]:
@@ -77,7 +77,7 @@ def gaussian_part_vs_pyscf(outcome, functionals=("pbe", "pbe0")) -> None:
 
 def main() -> None:
     from ks1d.report import functional_report
-    from ks1d.sweep.executors import PoolExecutor
+    from ks1d.sweep.engine.executors import PoolExecutor
 
     workers = int(_arg("--workers", "2"))
     with tempfile.TemporaryDirectory() as tmp:

@@ -6,7 +6,7 @@ Two cheap jobs — the LDA total energy of Be on the radial mesh and the LDA
 energy of H2O in def2-SVP — timed in this process, single-threaded:
 
 * the bare call: ks1d.solve_atom / ks1d.solve_molecule;
-* the same job through ks1d.sweep.worker.run_job (job decoding, property
+* the same job through ks1d.sweep.engine.worker.run_job (job decoding, property
   code, outcome dict), with the per-process memo cleared each time;
 * an inline sweep of both jobs into a new store: what it takes beyond the two
   run_job calls is the runner's and the store's share (registering, one
@@ -53,8 +53,9 @@ def main() -> int:
 
     import ks1d
     from ks1d.sweep import InlineExecutor, parse_spec, run_sweep
-    from ks1d.sweep.calculations import clear_memo
-    from ks1d.sweep.worker import run_job
+    from ks1d.sweep.properties.calculations import clear_memo
+    from ks1d.sweep.engine.worker import run_job
+    from ks1d.sweep.properties.registry import REGISTRY
 
     lib.num_threads(1)
     with threadpool_limits(1):
@@ -74,7 +75,7 @@ def main() -> int:
 
         def job_call(job):
             clear_memo()
-            out = run_job(job.to_dict())
+            out = run_job(job.to_dict(), REGISTRY.ref)
             assert out["status"] == "done", out
             return out
 
@@ -105,7 +106,7 @@ def main() -> int:
                 inside.append(o["seconds"] - o["solver_seconds"])
         # (b) the store: register N jobs, then record each with its own committed transaction
         from ks1d.sweep import Store
-        from ks1d.sweep.jobs import Job, freeze_settings
+        from ks1d.sweep.engine.jobs import Job, freeze_settings
 
         outcome = job_call(mol_job)
         n_store = 200

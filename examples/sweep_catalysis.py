@@ -13,7 +13,7 @@ import os
 import sys
 
 from ks1d.sweep import build_report, load_spec, make_executor, run_sweep, write_report
-from ks1d.sweep.tables import statistics_markdown
+from ks1d.sweep.output.tables import statistics_markdown
 
 HERE = os.path.dirname(os.path.abspath(__file__))
 

@@ -17,7 +17,7 @@ import pytest  # noqa: E402
 def small_report(tmp_path_factory):
     """One real functional sanity report (H, Li × LDA, PBE; def2-SVP; diatomics H2 and Li2), run in-process."""
     from ks1d.report import functional_report
-    from ks1d.sweep.executors import InlineExecutor
+    from ks1d.sweep.engine.executors import InlineExecutor
 
     out_dir = tmp_path_factory.mktemp("report")
     outcome = functional_report(["H", "Li"], functionals=["lda", "pbe"], basis="def2-svp",

@@ -10,8 +10,8 @@ import pytest
 from ks1d import units
 from ks1d.report import functional_report
 from ks1d.report.analysis import rank_functionals
-from ks1d.sweep.executors import InlineExecutor
-from ks1d.sweep.results import ResultRow
+from ks1d.sweep.engine.executors import InlineExecutor
+from ks1d.sweep.output.collect import ResultRow
 
 
 def _row(out, q, system, xc):
@@ -164,11 +164,11 @@ def test_a_second_report_reuses_the_store(small_report, tmp_path):
 
 def test_an_interrupted_report_keeps_what_finished(tmp_path):
     class StopsAfterTwo(InlineExecutor):
-        def run(self, jobs, on_result):
+        def run(self, jobs, on_result, registry):
             for i, job in enumerate(jobs):
                 if i == 2:
                     raise KeyboardInterrupt
-                super().run([job], on_result)
+                super().run([job], on_result, registry)
 
     store = str(tmp_path / "s.sqlite")
     with pytest.raises(KeyboardInterrupt):
@@ -208,8 +208,8 @@ def test_a_stalled_density_residual_is_retried_and_flagged():
     # and RKS(Li+) with r2SCAN in the large even-tempered s basis (run now).
     from pyscf import dft, gto
 
-    from ks1d.sweep.properties import run_property
-    from ks1d.sweep.systems import System
+    from ks1d.sweep.properties.registry import run_property
+    from ks1d.sweep.properties.systems import System
     from pyscf_atoms import even_tempered
 
     out = run_property("atom_survey", System(name="Li", kind="atom", symbol="Li"), "r2scan",
@@ -237,8 +237,8 @@ def test_s_to_p_promotion_of_carbon_uses_the_quintet_and_matches_pyscf():
     from pyscf import dft, gto
 
     import ks1d
-    from ks1d.sweep.properties import run_property
-    from ks1d.sweep.systems import System
+    from ks1d.sweep.properties.registry import run_property
+    from ks1d.sweep.properties.systems import System
 
     out = run_property("atom_survey", System(name="C", kind="atom", symbol="C"), "pbe",
                        {"precision": "normal", "atom_options": {"estimate_error": False}})
@@ -272,8 +272,8 @@ def test_symmetry_broken_ip_of_oxygen_matches_pyscf_uks():
     # E(integer) - E(spherical) in aug-cc-pVTZ.  pyscf UKS (integer occupations, symmetry-broken, aug-cc-pVQZ,
     # run now) gives that IP directly; the two differ by the basis dependence of the symmetry-breaking energy
     # (O, PBE: 1.2 mHa between aug-cc-pVDZ and aug-cc-pVTZ, so <= 0.03 eV at TZ) and pyscf's QZ basis error.
-    from ks1d.sweep.properties import run_property
-    from ks1d.sweep.systems import System
+    from ks1d.sweep.properties.registry import run_property
+    from ks1d.sweep.properties.systems import System
 
     out = run_property("atom_survey", System(name="O", kind="atom", symbol="O"), "pbe",
                        {"precision": "normal", "atom_options": {"estimate_error": False},
@@ -288,8 +288,8 @@ def test_hse06_atoms_from_the_gaussian_solver_match_pyscf():
     # HSE06 has no radial atoms (range separation): its IP comes from Gaussian UKS atoms with integer
     # occupations in aug-cc-pVTZ.  pyscf's UKS with the same functional, basis and occupations (run now) must
     # give the same IP up to the two codes' grid differences (~1e-5 Ha, well below 0.01 eV).
-    from ks1d.sweep.properties import run_property
-    from ks1d.sweep.systems import System
+    from ks1d.sweep.properties.registry import run_property
+    from ks1d.sweep.properties.systems import System
 
     out = run_property("atom_survey_basis", System(name="O", kind="atom", symbol="O"), "hse06",
                        {"basis": "aug-cc-pvtz"})

@@ -12,7 +12,7 @@ import textwrap
 import pytest
 
 from ks1d.sweep import DaskExecutor, InlineExecutor, PoolExecutor, parse_spec, run_sweep
-from ks1d.sweep.progress import Progress, format_line
+from ks1d.sweep.engine.progress import Progress, format_line
 
 TINY = textwrap.dedent("""
     name = "tiny"

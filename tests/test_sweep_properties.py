@@ -9,11 +9,11 @@ import pytest
 
 from ks1d import units
 from ks1d.sweep import InlineExecutor, parse_spec, run_sweep
-from ks1d.sweep.datasets import reference_for
-from ks1d.sweep.outputs import build_report
-from ks1d.sweep.curvefit import fit_curve, harmonic_wavenumber
-from ks1d.sweep.properties import run_property
-from ks1d.sweep.systems import System, parse_atom
+from ks1d.sweep.properties.datasets import reference_for
+from ks1d.sweep.output.writers import build_report
+from ks1d.sweep.properties.curvefit import fit_curve, harmonic_wavenumber
+from ks1d.sweep.properties.registry import run_property
+from ks1d.sweep.properties.systems import System, parse_atom
 
 
 def test_curve_fit_recovers_a_morse_minimum_and_curvature():
@@ -71,7 +71,7 @@ def test_h2_atomization_energy_matches_pyscf():
 def test_h2_bond_length_and_frequency_match_a_pyscf_scan():
     # the same 7-point scan and quartic fit done on pyscf energies (numpy polyfit), LDA/def2-SVP;
     # masses: 1H = 1.00782503 u (CODATA/AME, as in pyscf.data.elements)
-    from ks1d.sweep.datasets import diatomic
+    from ks1d.sweep.properties.datasets import diatomic
 
     h2 = diatomic("H2")
     out = run_property("diatomic_curve", h2, "lda", {"basis": "def2-svp", "scan_points": 7, "scan_step": 0.02})
@@ -92,7 +92,7 @@ def test_h2_bond_length_and_frequency_match_a_pyscf_scan():
 
 def test_g2_1_references_are_electronic_not_zero_point_values():
     pytest.importorskip("ase")
-    from ks1d.sweep.datasets import g2_1_molecule, g2_1_state_pair
+    from ks1d.sweep.properties.datasets import g2_1_molecule, g2_1_state_pair
 
     # CH4 total atomization energy without zero-point energy: 420.4 kcal/mol in the W4-11 set
     # (Karton, Daon, Martin, Chem. Phys. Lett. 510, 165 (2011); from memory); D_0 would be ~392.5

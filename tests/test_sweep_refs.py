@@ -10,7 +10,7 @@ import pytest
 
 from ks1d.commands import refs as refs_command
 from ks1d.errors import InputError
-from ks1d.sweep.refs import parse_elements
+from ks1d.sweep.properties.systems import parse_elements
 
 
 def _run(argv, capsys):

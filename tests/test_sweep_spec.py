@@ -7,8 +7,9 @@ import pytest
 
 from ks1d.errors import InputError
 from ks1d.sweep import SpecError, parse_spec
-from ks1d.sweep.properties import sd_configurations
-from ks1d.sweep.systems import atom_multiplicity, parse_atom
+from ks1d.sweep.properties.configurations import sd_configurations
+from ks1d.occupations import ground_state_multiplicity
+from ks1d.sweep.properties.systems import parse_atom
 
 
 def _spec(body: str, top: str = 'functionals = ["lda", "pbe"]'):
@@ -81,13 +82,13 @@ def test_atom_multiplicities_match_the_g2_1_magnetic_moments():
     g2 = pytest.importorskip("ase.data.g2_1")
     for sym in g2.atom_names:
         moment = sum(g2.data[sym]["magmoms"] or [0.0])
-        assert atom_multiplicity(sym) == round(moment) + 1, sym
+        assert ground_state_multiplicity(sym) == round(moment) + 1, sym
 
 
 def test_g2_1_molecules_carry_geometry_and_multiplicity_from_ase():
     g2 = pytest.importorskip("ase.data.g2_1")
-    from ks1d.sweep.datasets import g2_1_molecule
-    from ks1d.sweep.systems import bond_length
+    from ks1d.sweep.properties.datasets import g2_1_molecule
+    from ks1d.sweep.properties.systems import bond_length
 
     o2 = g2_1_molecule("O2")
     assert o2.multiplicity == 3  # ASE: "O2 molecule, D*h symm, Triplet."

@@ -19,7 +19,8 @@ import time
 import pytest
 
 from ks1d.sweep import InlineExecutor, Store, StoreError, parse_spec, run_sweep
-from ks1d.sweep.jobs import Job
+from ks1d.sweep.engine.jobs import Job
+from ks1d.sweep.properties.systems import System
 
 CHEAP = textwrap.dedent("""
     name = "cheap-atoms"
@@ -96,7 +97,7 @@ def test_job_key_changes_with_settings_functional_system_and_version():
     jobs = spec.jobs()
     assert len({j.key for j in jobs}) == len(jobs) == 20
     j = jobs[0]
-    assert Job.from_dict(json.loads(json.dumps(j.to_dict()))).key == j.key
+    assert Job.from_dict(json.loads(json.dumps(j.to_dict())), System.from_dict).key == j.key
     other = parse_spec(CHEAP.replace('precision = "low"', 'precision = "normal"')).jobs()[0]
     assert other.key != j.key
     newer = Job(system=j.system, property=j.property, functional=j.functional, settings=j.settings,

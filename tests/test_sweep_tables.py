@@ -16,11 +16,11 @@ import xml.etree.ElementTree as ET
 import numpy as np
 import pytest
 
-from ks1d.sweep.datasets import reference_for
-from ks1d.sweep.results import ResultRow
-from ks1d.sweep.statistics import error_statistics
-from ks1d.sweep.systems import parse_atom
-from ks1d.sweep.tables import results_markdown, statistics_csv, values_csv, write_tables
+from ks1d.sweep.properties.datasets import reference_for
+from ks1d.sweep.output.collect import ResultRow
+from ks1d.sweep.output.statistics import error_statistics
+from ks1d.sweep.properties.systems import parse_atom
+from ks1d.sweep.output.tables import results_markdown, statistics_csv, values_csv, write_tables
 
 
 @pytest.fixture(scope="module")
@@ -80,7 +80,7 @@ def test_tables_read_back_with_the_standard_library(rows, tmp_path):
 
 def test_plots_are_valid_png_and_svg(rows, tmp_path):
     pytest.importorskip("matplotlib")
-    from ks1d.sweep.plots import write_plots
+    from ks1d.sweep.output.plots import write_plots
 
     paths = write_plots(str(tmp_path), rows)
     assert sorted(p.rsplit("/", 1)[1] for p in paths) == sorted(

@@ -6,13 +6,11 @@
 """
 from __future__ import annotations
 
-from ..serialize import dumps
-
-import json
 import os
 import sys
 
 from ..errors import InputError
+from ..serialize import dumps
 
 _STRUCTURE_SUFFIXES = (".xyz", ".extxyz", ".exyz")
 
@@ -45,7 +43,7 @@ def register(subparsers) -> None:
     p.add_argument("--workers", type=int, default=None, metavar="N",
                    help="worker processes (default: one per core; 0 runs in this process)")
     p.add_argument("--retry-failed", action="store_true", help="run jobs that failed in an earlier report again")
-    p.add_argument("--quiet", action="store_true", help="no progress line")
+    p.add_argument("--quiet", action="store_true", help="no progress line on stderr")
     p.add_argument("--json", action="store_true", help="print a JSON summary instead of the text summary")
     p.set_defaults(func=_report)
 
@@ -58,8 +56,8 @@ def _is_structure(tokens: list[str]) -> bool:
 
 
 def _report(args) -> int:
-    from ..report import functional_report
-    from ..sweep.executors import make_executor
+    from ..report.run import functional_report
+    from ..sweep.engine.executors import make_executor
     from .refs import split_functionals
 
     if args.workers is not None and args.workers < 0:
@@ -71,7 +69,7 @@ def _report(args) -> int:
     out = functional_report(elements=() if structure else args.inputs, structure=structure, functionals=xcs,
                             basis=args.basis, output=args.output, store=args.store,
                             executor=make_executor(workers=args.workers), diatomics=not args.no_diatomics,
-                            progress=not args.quiet and not args.json, stream=sys.stderr,
+                            progress=not args.quiet, stream=sys.stderr,
                             retry_failed=args.retry_failed,
                             symmetry_broken=args.symmetry_basis if args.symmetry_broken else None)
     if args.json:

@@ -1,18 +1,19 @@
 """``ks1d sweep``: run a benchmark sweep into a store and turn a store into tables and plots.
 
-    ks1d sweep plan SPEC                         list the jobs a spec expands into
+    ks1d sweep plan SPEC                         check a spec and list the jobs it expands into
     ks1d sweep run SPEC --store PATH [--workers N | --dask | --scheduler ADDRESS] [--retry-failed | --rerun]
     ks1d sweep status --store PATH [--failed]    job counts, runs, failed jobs with their errors
     ks1d sweep report --store PATH --out DIR [--spec SPEC] [--formats csv,json,md] [--plots png,svg]
+
+``plan`` and ``run`` check the whole spec first (keys, systems, functionals, bases, and that each
+job's solver can do its functional), with the same checks as ``ks1d report``.
 """
 from __future__ import annotations
 
-from ..serialize import dumps
-
-import json
 import sys
 
 from ..errors import InputError
+from ..serialize import dumps
 
 
 def register(subparsers) -> None:
@@ -21,7 +22,7 @@ def register(subparsers) -> None:
                                           "and turn stores into tables and plots.")
     sub = p.add_subparsers(dest="sweep_command", metavar="ACTION", parser_class=type(p))
 
-    plan = sub.add_parser("plan", help="list the jobs of a spec without running them")
+    plan = sub.add_parser("plan", help="check a spec and list its jobs without running them")
     plan.add_argument("spec", help="sweep spec (TOML)")
     plan.add_argument("--store", help="also say which jobs this store has finished")
     plan.add_argument("--json", action="store_true", help="print the jobs as JSON")
@@ -38,7 +39,8 @@ def register(subparsers) -> None:
     run.add_argument("--rerun", action="store_true",
                      help="run every job again, finished ones included (e.g. after changing ks1d's code)")
     run.add_argument("--limit", type=int, metavar="N", help="run at most N jobs now (the rest stay pending)")
-    run.add_argument("--no-progress", action="store_true", help="no progress bar on stderr")
+    run.add_argument("--quiet", "--no-progress", dest="quiet", action="store_true",
+                     help="no progress line on stderr")
     run.add_argument("--json", action="store_true", help="print the run summary as JSON")
     run.set_defaults(func=_run)
 
@@ -67,7 +69,8 @@ def _store_must_exist(path: str) -> None:
 
 
 def _plan(args) -> int:
-    from ..sweep import Store, load_spec
+    from ..sweep.engine.store import Store
+    from ..sweep.spec import load_spec
 
     spec = load_spec(args.spec)
     jobs = spec.jobs()
@@ -90,7 +93,9 @@ def _plan(args) -> int:
 
 
 def _run(args) -> int:
-    from ..sweep import load_spec, make_executor, run_sweep
+    from ..sweep.engine.executors import make_executor
+    from ..sweep.run import run_sweep
+    from ..sweep.spec import load_spec
 
     if args.workers is not None and args.workers < 0:
         raise InputError(f"--workers must be 0 or more, got {args.workers}")
@@ -101,7 +106,7 @@ def _run(args) -> int:
     spec = load_spec(args.spec)
     executor = make_executor(workers=args.workers, scheduler=args.scheduler, dask=args.dask)
     summary = run_sweep(spec, args.store, executor, retry_failed=args.retry_failed,
-                        progress=not args.no_progress, limit=args.limit, rerun=args.rerun)
+                        progress=not args.quiet, limit=args.limit, rerun=args.rerun)
     if args.json:
         print(dumps(summary.to_dict(), indent=1))
     else:
@@ -116,7 +121,7 @@ def _run(args) -> int:
 
 
 def _status(args) -> int:
-    from ..sweep import Store
+    from ..sweep.engine.store import Store
 
     _store_must_exist(args.store)
     with Store(args.store) as store:
@@ -148,7 +153,9 @@ def _status(args) -> int:
 
 
 def _report(args) -> int:
-    from ..sweep import build_report, load_spec, write_report
+    from ..sweep.output.tables import statistics_markdown
+    from ..sweep.output.writers import build_report, write_report
+    from ..sweep.spec import load_spec
 
     _store_must_exist(args.store)
     formats = [f.strip().lower() for f in args.formats.split(",") if f.strip()]
@@ -164,8 +171,6 @@ def _report(args) -> int:
     written = write_report(report, args.out, formats, plots, description=spec.description if spec else "")
     print(f"{report.sweep}: {len(report.rows)} values, {len(report.failures)} failed jobs, "
           f"{report.pending} pending; wrote {len(written)} files to {args.out}")
-    from ..sweep.tables import statistics_markdown
-
     if report.statistics:
         print(statistics_markdown(report.statistics))
     return 0

@@ -20,14 +20,18 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 from typing import Any, Sequence
 
+from ..quantities import quantity
+from ..sweep.engine.store import JobRow
+from ..sweep.output.collect import FailureRow, ResultRow, collect
+from ..sweep.properties.atom_survey import quantity_of_step
 from ..units import HARTREE_TO_EV
-from ..sweep.results import FailureRow, ResultRow, collect
-from ..sweep.store import JobRow
 
 #: Quantities pooled into the ranking score (all in eV).
 RANKED = ("ionisation_potential", "electron_affinity", "sd_promotion", "sp_promotion", "dissociation_energy")
 #: Shown beside the score: MAE of these per functional.
 SIDE = ("homo_vs_ip", "bond_length", "harmonic_frequency")
+if any(quantity(q).unit != "eV" for q in RANKED):  # pragma: no cover - the score pools eV
+    raise RuntimeError("every ranked quantity must be an energy in eV")
 
 
 @dataclass(frozen=True)
@@ -41,21 +45,6 @@ class Flag:
     job: str
     quantity: str | None = None  # the quantity it concerns; None: the whole job
     value: float | None = None  # the number behind the flag, in eV (the anion's eigenvalue for "unbound anion")
-
-
-def _step_quantity(label: str) -> str | None:
-    """Which survey quantity a failed or retried step feeds (from the step labels of ks1d.sweep.survey)."""
-    if label.endswith(" cation"):
-        return "ionisation_potential"
-    if label.endswith(" anion"):
-        return "electron_affinity"
-    if label.endswith(" spin-restricted"):
-        return "spin_polarization_energy"
-    if " s→d " in label:
-        return "sd_promotion"
-    if " s→p " in label:
-        return "sp_promotion"
-    return None
 
 
 @dataclass(frozen=True)
@@ -170,11 +159,11 @@ def _flags(jr: JobRow) -> list[Flag]:
                         "electron_affinity"))
     for step in d.get("failed_steps", []):
         out.append(Flag(jr.system, jr.functional, "step failed", f"{step['step']}: {step['error']}", jr.key,
-                        _step_quantity(step["step"])))
+                        quantity_of_step(step["step"])))
     for step in d.get("retried_steps", []):
         out.append(Flag(jr.system, jr.functional, "SCF retried",
                         f"{step}: converged only in the retry (slower mixing, density tolerance 1e-5)", jr.key,
-                        _step_quantity(step)))
+                        quantity_of_step(step)))
     for w in d.get("warnings", []):
         out.append(Flag(jr.system, jr.functional, "warning", w, jr.key,
                         "basis_set_error" if jr.property == "basis_set_error" else None))

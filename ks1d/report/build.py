@@ -3,31 +3,21 @@ from __future__ import annotations
 
 from typing import Sequence
 
-from ..sweep.results import ResultRow
-from ..sweep.tables import fmt, unit_text
+from ..quantities import fmt, quantity
+from ..sweep.output.collect import ResultRow
+from ..xc import resolve_functional
 from . import figures
 from .analysis import RANKED, ReportData
 from .document import Bullets, Cell, Document, Figure, Section, Table
 from .plan import ReportPlan
 
-TITLES = {
-    "ionisation_potential": "Ionisation potentials",
-    "electron_affinity": "Electron affinities",
-    "sd_promotion": "s→d promotion energies",
-    "sp_promotion": "s→p promotion energies",
-    "homo_vs_ip": "−ε_HOMO against the experimental IP",
-    "spin_polarization_energy": "Spin-polarization energies",
-    "basis_set_error": "Basis-set error of the planned basis",
-    "bond_length": "Diatomic bond lengths r_e",
-    "harmonic_frequency": "Diatomic harmonic frequencies ω_e",
-    "dissociation_energy": "Diatomic dissociation energies D_0",
-}
-SHORT = {"ionisation_potential": "IP", "electron_affinity": "EA", "sd_promotion": "s→d", "sp_promotion": "s→p",
-         "dissociation_energy": "D_0", "homo_vs_ip": "−ε_HOMO − IP", "bond_length": "r_e",
-         "harmonic_frequency": "ω_e"}
-UNITS = {"ionisation_potential": "eV", "electron_affinity": "eV", "sd_promotion": "eV", "sp_promotion": "eV",
-         "dissociation_energy": "eV", "homo_vs_ip": "eV", "bond_length": "angstrom", "harmonic_frequency": "cm^-1"}
+#: The report's quantity sections, in page order: per element, then per diatomic.
+ATOM_SECTIONS = ("ionisation_potential", "electron_affinity", "sd_promotion", "sp_promotion", "homo_vs_ip",
+                 "spin_polarization_energy", "basis_set_error")
+DIATOMIC_SECTIONS = ("bond_length", "harmonic_frequency", "dissociation_energy")
 
+#: What each section's numbers are and which experiment they are compared with (the report's own prose;
+#: units, titles and decimals come from ks1d.quantities).
 EXPLAIN = {
     "ionisation_potential": "IP = E(X⁺) − E(X), each atom spin-polarized and spherical at the basis-set limit "
                             "(radial solver). Experiment: NIST Atomic Spectra Database via mendeleev.",
@@ -74,12 +64,12 @@ CAVEATS = (
 )
 
 
-def _cell(r: ResultRow | None, flagged: set[tuple[str, str, str]], signed_value: bool = False) -> Cell:
+def _cell(r: ResultRow | None, flagged: set[tuple[str, str, str]]) -> Cell:
     if r is None:
         return Cell("—", title="not computed or failed (see Skipped and failed)")
-    text = fmt(r.value, r.unit, signed=signed_value)
+    text = fmt(r.value, r.quantity, signed=quantity(r.quantity).signed)
     if r.error is not None:
-        text += f" ({fmt(r.error, r.unit, signed=True)})"
+        text += f" ({fmt(r.error, r.quantity, signed=True)})"
     mark = "flag" if (r.system, r.functional, r.quantity) in flagged else None
     return Cell(text, link=f"job-{r.job[:12]}", title=f"stored job {r.job[:12]}", mark=mark)
 
@@ -89,7 +79,7 @@ def _quantity_table(data: ReportData, q: str, systems: Sequence[str], funcs: Seq
     rows = [r for r in data.rows if r.quantity == q]
     if not rows:
         return None
-    unit = unit_text(rows[0].unit)
+    unit = quantity(q).unit_text
     has_ref = any(r.reference is not None for r in rows)
     header = ("system",) + ((f"experiment ({unit})",) if has_ref else ()) + tuple(f"{f} ({unit})" for f in funcs)
     body = []
@@ -98,12 +88,12 @@ def _quantity_table(data: ReportData, q: str, systems: Sequence[str], funcs: Seq
         if not srows:
             continue
         ref = next((r.reference for r in srows if r.reference is not None), None)
-        refcell = (Cell(fmt(ref, rows[0].unit) if ref is not None else (extra or {}).get(s, "—")),) if has_ref else ()
+        refcell = (Cell(fmt(ref, q) if ref is not None else (extra or {}).get(s, "—")),) if has_ref else ()
         best = min((abs(r.error) for r in srows if r.error is not None), default=None)
         cells = []
         for f in funcs:
             r = next((r for r in srows if r.functional == f), None)
-            c = _cell(r, flagged, signed_value=q in ("sd_promotion", "sp_promotion"))
+            c = _cell(r, flagged)
             if r is not None and best is not None and r.error is not None and abs(r.error) == best and len(funcs) > 1:
                 c = Cell(c.text, c.link, c.title, c.mark or "best")
             cells.append(c)
@@ -115,20 +105,18 @@ def _quantity_table(data: ReportData, q: str, systems: Sequence[str], funcs: Seq
 
 
 def _ranking_section(plan: ReportPlan, data: ReportData) -> Section:
-    from ..xc import resolve_functional
-
     cols = [q for q in RANKED + ("homo_vs_ip", "bond_length") if any(q in e.mae for e in data.ranking)]
     header = ("rank", "functional", "kind", "score: pooled MAE (eV)", "N") + tuple(
-        f"MAE {SHORT[q]} ({unit_text(UNITS[q])})" for q in cols) + ("note",)
+        f"MAE {quantity(q).short} ({quantity(q).unit_text})" for q in cols) + ("note",)
     body = []
     for e in data.ranking:
         f = resolve_functional(e.functional)
         body.append((str(e.rank) if e.rank else "—", e.functional, f.kind,
                      "—" if e.score is None else f"{e.score:.3f}", str(e.n))
-                    + tuple(f"{e.mae[q][0]:.{4 if q == 'bond_length' else 3}f} ({e.mae[q][1]})" if q in e.mae else "—"
-                            for q in cols) + (e.note,))
+                    + tuple(f"{fmt(e.mae[q][0], q)} ({e.mae[q][1]})" if q in e.mae else "—" for q in cols)
+                    + (e.note,))
     n_common = len(data.common)
-    parts = ", ".join(f"{sum(1 for c in data.common if c[0] == q)} {SHORT[q]}" for q in RANKED
+    parts = ", ".join(f"{sum(1 for c in data.common if c[0] == q)} {quantity(q).short}" for q in RANKED
                       if any(c[0] == q for c in data.common))
     blocks: list = []
     ranked = [e for e in data.ranking if e.rank]
@@ -224,10 +212,8 @@ def build_document(plan: ReportPlan, data: ReportData, meta: Sequence[tuple[str,
     flagged = {(f.system, f.functional, f.quantity) for f in data.flags if f.kind != "SCF retried" and f.quantity}
     funcs = list(plan.functionals)
     sections = [_ranking_section(plan, data)]
-    atom_qs = ("ionisation_potential", "electron_affinity", "sd_promotion", "sp_promotion", "homo_vs_ip",
-               "spin_polarization_energy", "basis_set_error")
-    for q in atom_qs + ("bond_length", "harmonic_frequency", "dissociation_energy"):
-        systems = list(plan.elements) if q in atom_qs else list(plan.diatomics)
+    for q in ATOM_SECTIONS + DIATOMIC_SECTIONS:
+        systems = list(plan.elements) if q in ATOM_SECTIONS else list(plan.diatomics)
         extra = data.anion_statements if q == "electron_affinity" else None
         t = _quantity_table(data, q, systems, funcs, flagged, extra)
         if t is None:
@@ -240,11 +226,12 @@ def build_document(plan: ReportPlan, data: ReportData, meta: Sequence[tuple[str,
         blocks: list = [explain, t]
         rows = [r for r in data.rows if r.quantity == q]
         use_err = any(r.error is not None for r in rows)
-        png = figures.grouped_bars(rows, TITLES[q], use_errors=use_err)
+        heading, unit = quantity(q).heading, quantity(q).unit_text
+        png = figures.grouped_bars(rows, heading, use_errors=use_err)
         if png:
             what = "error against experiment" if use_err else "values"
-            blocks.append(Figure(q, f"{TITLES[q]}: {what} ({unit_text(rows[0].unit)})", png))
-        sections.append(Section(f"{TITLES[q]} ({unit_text(rows[0].unit)})", q, tuple(blocks)))
+            blocks.append(Figure(q, f"{heading}: {what} ({unit})", png))
+        sections.append(Section(f"{heading} ({unit})", q, tuple(blocks)))
     sections.append(_flags_section(plan, data))
     sections.append(_provenance_section(plan, data, store_path, sweep_name))
     notice = ("These are numerical model results for research use. Validate them against experiment or "

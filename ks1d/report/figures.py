@@ -11,9 +11,9 @@ from __future__ import annotations
 import io
 from typing import Sequence
 
-from ..sweep.plots import _pyplot
-from ..sweep.results import ResultRow, functionals_of, systems_of
-from ..sweep.tables import unit_text
+from ..quantities import unit_text
+from ..sweep.output.collect import ResultRow, functionals_of, systems_of
+from ..sweep.output.plots import pyplot
 from .analysis import RankEntry
 
 #: Bar colours, one per functional (in order).  Tests look for them in a browser screenshot.
@@ -24,7 +24,7 @@ DPI = 110
 def _png(fig) -> bytes:
     buf = io.BytesIO()
     fig.savefig(buf, format="png", dpi=DPI, bbox_inches="tight", metadata={"Software": None})
-    _pyplot().close(fig)
+    pyplot().close(fig)
     return buf.getvalue()
 
 
@@ -33,7 +33,7 @@ def ranking_figure(ranking: Sequence[RankEntry]) -> bytes | None:
     ranked = [e for e in ranking if e.score is not None]
     if not ranked:
         return None
-    plt = _pyplot()
+    plt = pyplot()
     fig, ax = plt.subplots(figsize=(6.4, 0.45 * len(ranked) + 1.2))
     names = [e.functional for e in ranked][::-1]
     scores = [e.score for e in ranked][::-1]
@@ -52,7 +52,7 @@ def grouped_bars(rows: Sequence[ResultRow], title: str, use_errors: bool) -> byt
     rows = [r for r in rows if (r.error is not None) or not use_errors]
     if not rows:
         return None
-    plt = _pyplot()
+    plt = pyplot()
     systems = systems_of(rows)
     funcs = functionals_of(rows)
     width = 0.8 / max(len(funcs), 1)

@@ -2,7 +2,9 @@
 
 Everything a user can get wrong is checked here, before any calculation:
 element symbols, the structure file, functional names, the basis (that it
-exists, has every element and needs no effective core potential).
+exists, has every element and needs no effective core potential), and
+finally every planned job with the same checks as a sweep spec
+(:func:`ks1d.sweep.properties.checks.check_jobs`).
 
 Per element and functional (neutral atom, radial solver, basis-set limit):
 an ``atom_survey`` job (IP, EA, −ε_HOMO, spin-polarization and s→d promotion
@@ -23,9 +25,11 @@ from dataclasses import dataclass
 from typing import Sequence
 
 from ..errors import InputError
-from ..sweep.jobs import Job, freeze_settings
-from ..sweep.systems import System
 from ..structure import Structure, read_structure
+from ..sweep.engine.jobs import Job, freeze_settings
+from ..sweep.properties.checks import check_basis, check_jobs, radial_refusal, resolve_functional
+from ..sweep.properties.datasets import diatomic, diatomic_names
+from ..sweep.properties.systems import neutral_atom, parse_elements
 
 #: The default ladder: LDA, two GGAs, a meta-GGA, two global hybrids and a screened hybrid.
 DEFAULT_FUNCTIONALS = ("lda", "pbe", "pbesol", "r2scan", "pbe0", "hse06", "b3lyp")
@@ -68,15 +72,7 @@ class ReportPlan:
         return f"{' '.join(self.elements)} × {', '.join(self.functionals)}"
 
 
-def _elements(tokens: Sequence[str]) -> list[str]:
-    from ..sweep.refs import parse_elements
-
-    return parse_elements(tokens)
-
-
 def _functionals(names: Sequence[str] | None) -> tuple[str, ...]:
-    from ..xc import resolve_functional
-
     if names is None:
         return DEFAULT_FUNCTIONALS
     out: list[str] = []
@@ -88,12 +84,6 @@ def _functionals(names: Sequence[str] | None) -> tuple[str, ...]:
     if not out:
         raise InputError("give at least one functional, e.g. --xc pbe,pbe0")
     return tuple(dict.fromkeys(out))
-
-
-def _check_basis(basis: str, symbols: Sequence[str]) -> None:
-    from ..gaussian.basis import check_basis
-
-    check_basis(basis, symbols)  # BasisError: unknown name, missing element, needs an ECP
 
 
 def pair_formula(a: str, b: str, known: Sequence[str]) -> str | None:
@@ -115,12 +105,9 @@ def plan_report(elements: Sequence[str] = (), structure: str | Structure | None 
     """Validate the request and list its jobs (no calculation runs here).
 
     ``symmetry_broken`` names a Gaussian basis (e.g. ``SYMMETRY_BROKEN_BASIS``): IPs and EAs then refer to
-    integer-occupation atoms (see :func:`ks1d.sweep.survey._symmetry_broken`) instead of spherical ones.
+    integer-occupation atoms (see :func:`ks1d.sweep.properties.atom_survey._symmetry_broken`) instead of
+    spherical ones.
     """
-    from ..sweep.datasets import diatomic_names
-    from ..sweep.survey import diatomic_system
-    from ..xc import resolve_functional
-
     if structure is not None and elements:
         raise InputError("give an element list or a structure file, not both")
     st: Structure | None = None
@@ -130,7 +117,7 @@ def plan_report(elements: Sequence[str] = (), structure: str | Structure | None 
         source = f"structure file {st.source} ({len(st.symbols)} atoms)"
         pairs = list(st.bonded_pairs())
     else:
-        symbols = _elements(elements)
+        symbols = parse_elements(elements)
         source = "element list"
         pairs = [(a, b) for i, a in enumerate(symbols) for b in symbols[i:]]
     xcs = _functionals(functionals)
@@ -138,11 +125,11 @@ def plan_report(elements: Sequence[str] = (), structure: str | Structure | None 
         basis = str(basis).strip()
         if not basis:
             raise InputError("the basis name is empty")
-        _check_basis(basis, symbols)
+        check_basis(basis, symbols)  # BasisError: unknown name, missing element, needs an ECP
 
     if symmetry_broken is not None:
         symmetry_broken = str(symmetry_broken).strip()
-        _check_basis(symmetry_broken, symbols)
+        check_basis(symmetry_broken, symbols)
 
     known = set(diatomic_names())
     with_data: list[str] = []
@@ -157,7 +144,7 @@ def plan_report(elements: Sequence[str] = (), structure: str | Structure | None 
                 with_data.append(f)
     diatomic_basis = (basis or DEFAULT_DIATOMIC_BASIS) if with_data else None
     if with_data and basis is None:
-        _check_basis(DEFAULT_DIATOMIC_BASIS, sorted({s for f in with_data for s in diatomic_system(f).symbols}))
+        check_basis(DEFAULT_DIATOMIC_BASIS, sorted({s for f in with_data for s in diatomic(f).symbols}))
 
     jobs: list[Job] = []
     skipped: list[Skip] = []
@@ -165,16 +152,15 @@ def plan_report(elements: Sequence[str] = (), structure: str | Structure | None 
                                     {**ATOM_SETTINGS, "symmetry_broken_basis": symmetry_broken})
     gaussian_atoms = symmetry_broken or SYMMETRY_BROKEN_BASIS
     gaussian_atoms_ok = True
-    if any(resolve_functional(xc).is_range_separated for xc in xcs):
+    if any(radial_refusal(resolve_functional(xc)) for xc in xcs):
         try:
-            _check_basis(gaussian_atoms, symbols)
+            check_basis(gaussian_atoms, symbols)
         except InputError:
             gaussian_atoms_ok = False
     for xc in xcs:
-        func = resolve_functional(xc)
-        radial_ok = not func.is_range_separated
+        reason = radial_refusal(resolve_functional(xc))
+        radial_ok = reason is None
         if not radial_ok:
-            reason = "the radial solver has no range-separated exact exchange yet"
             if gaussian_atoms_ok:
                 skipped.append(Skip(xc, "IP, EA and −ε_HOMO at the basis-set limit",
                                     f"{reason}: they come from Gaussian atoms in {gaussian_atoms} with integer "
@@ -186,7 +172,7 @@ def plan_report(elements: Sequence[str] = (), structure: str | Structure | None 
             if basis is not None:
                 skipped.append(Skip(xc, "basis-set error", f"{reason} (no basis-set-limit atoms)"))
         for sym in symbols:
-            system = System(name=sym, kind="atom", symbol=sym, source="element symbol")
+            system = neutral_atom(sym)
             if radial_ok:
                 jobs.append(Job(system=system, property="atom_survey", functional=xc, settings=atom_settings))
                 if basis is not None:
@@ -196,8 +182,9 @@ def plan_report(elements: Sequence[str] = (), structure: str | Structure | None 
                 jobs.append(Job(system=system, property="atom_survey_basis", functional=xc,
                                 settings=freeze_settings({"basis": gaussian_atoms})))
         for f in with_data:
-            jobs.append(Job(system=diatomic_system(f), property="diatomic_survey", functional=xc,
+            jobs.append(Job(system=diatomic(f), property="diatomic_survey", functional=xc,
                             settings=freeze_settings({"basis": diatomic_basis, **SCAN})))
+    check_jobs(jobs)  # the checks a sweep spec gets: every job's solver can do its functional, in its basis
     return ReportPlan(elements=tuple(symbols), functionals=xcs, basis=basis, diatomic_basis=diatomic_basis,
                       diatomics=tuple(with_data), pairs_without_data=tuple(without), source=source,
                       structure_path=None if st is None else st.source, skipped=tuple(skipped), jobs=tuple(jobs),

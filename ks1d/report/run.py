@@ -75,9 +75,10 @@ def functional_report(elements: Sequence[str] = (), structure: str | None = None
     already finished in the store are reused; each new result is stored as
     soon as it arrives, so an interrupted report loses nothing.
     """
-    from ..sweep.executors import PoolExecutor
-    from ..sweep.runner import run_jobs
-    from ..sweep.store import Store
+    from ..sweep.engine.executors import PoolExecutor
+    from ..sweep.engine.runner import run_jobs
+    from ..sweep.engine.store import Store
+    from ..sweep.properties.registry import REGISTRY
 
     t0 = time.perf_counter()
     plan = plan_report(elements=elements, structure=structure, functionals=functionals, basis=basis,
@@ -87,7 +88,7 @@ def functional_report(elements: Sequence[str] = (), structure: str | None = None
     name = sweep_name(plan)
     source = (f"ks1d report {plan.source}: elements {' '.join(plan.elements)}; functionals "
               f"{', '.join(plan.functionals)}; basis {plan.basis}; diatomics {', '.join(plan.diatomics) or 'none'}")
-    summary = run_jobs(name, source, list(plan.jobs), store_path, executor or PoolExecutor(),
+    summary = run_jobs(name, source, list(plan.jobs), store_path, executor or PoolExecutor(), REGISTRY,
                        retry_failed=retry_failed, progress=progress, stream=stream)
     keys = {j.key for j in plan.jobs}
     with Store(store_path) as st:

@@ -33,8 +33,17 @@ A study may carry a ``label`` (free text) and its own ``functionals``.
 Solver keys (in ``[solver]`` or any study, the study winning):
 ``precision``, ``spin`` (radial atoms), ``atoms`` (``"radial"`` or ``"basis"``:
 how atoms are solved), ``basis``, ``scan_points``, ``scan_step``, and the
-pass-through tables ``atom_options`` / ``molecule_options`` (extra keyword
-arguments of :func:`ks1d.solve_atom` / :func:`ks1d.solve_molecule`).
+pass-through tables ``atom_options`` / ``molecule_options``: extra keyword
+arguments of :func:`ks1d.radial.scf.solve_atom` / :func:`ks1d.gaussian.scf.solve_molecule`,
+with the SCF options of :class:`ks1d.results.SCFOptions` given flat in the
+same table (``damping``, ``residual_tolerance``, ``max_iterations``,
+``history``, ``energy_tolerance``; ``level_shift`` and ``smearing`` for molecules).
+
+Everything is checked while the spec is read, before any job runs and with
+the same checks as ``ks1d report`` (:mod:`ks1d.sweep.properties.checks`):
+keys, systems, functionals, bases (known, with every element, all-electron),
+and that each job's solver can do its functional (the radial solver has no
+range-separated hybrids).  A spec file must be UTF-8 (TOML's own rule).
 """
 from __future__ import annotations
 
@@ -50,10 +59,11 @@ from typing import Any
 
 from .. import elements
 from ..errors import InputError
-from . import datasets
-from .jobs import Job, freeze_settings
-from .properties import KINDS, kind_of
-from .systems import System, molecule_from_xyz_file, parse_atom
+from .engine.jobs import Job, freeze_settings
+from .properties import datasets
+from .properties.checks import check_jobs
+from .properties.kinds import KINDS, kind_of
+from .properties.systems import System, normalise_xyz, parse_atom
 
 #: Solver settings and their defaults.
 SOLVER_DEFAULTS: dict[str, Any] = {
@@ -72,6 +82,16 @@ _STUDY_KEYS = {"property", "properties", "systems", "functionals", "label"} | se
 _SYSTEM_KEYS = {"atom", "charge", "xyz", "name", "multiplicity", "multiplicities"}
 
 
+#: Option names of earlier ks1d versions → (the name now, how the value translates).
+RENAMED_OPTIONS: dict[str, tuple[str, str]] = {
+    "mixing": ("damping", "damping = 1 − mixing, the fraction of the previous input kept"),
+    "density_tol": ("residual_tolerance", "the same number: ∫|ρ_out − ρ_in| in electrons"),
+    "energy_tol": ("energy_tolerance", "the same number, hartree"),
+    "gradient_tolerance": ("residual_tolerance", "the same number: max |Xᵀ(FDS − SDF)X|, hartree"),
+    "diis_size": ("history", "the same number: the Pulay/DIIS subspace length"),
+}
+
+
 class SpecError(InputError):
     """A sweep specification that cannot be run as written."""
 
@@ -85,6 +105,13 @@ class Study:
     functionals: tuple[str, ...]
     settings: tuple[tuple[str, Any], ...]
     label: str = ""
+
+    def jobs(self) -> list[Job]:
+        """The study's jobs: kinds × systems × functionals, each with the settings it reads."""
+        solver = dict(self.settings)
+        return [Job(system=system, property=kind, functional=func,
+                    settings=freeze_settings(job_settings(kind, solver, system)))
+                for kind in self.kinds for system in self.systems for func in self.functionals]
 
 
 @dataclass(frozen=True)
@@ -100,13 +127,8 @@ class SweepSpec:
         """Every job of the sweep, in spec order, without duplicates."""
         seen: dict[str, Job] = {}
         for st in self.studies:
-            solver = dict(st.settings)
-            for kind in st.kinds:
-                for system in st.systems:
-                    for func in st.functionals:
-                        job = Job(system=system, property=kind, functional=func,
-                                  settings=freeze_settings(job_settings(kind, solver, system)))
-                        seen.setdefault(job.key, job)
+            for job in st.jobs():
+                seen.setdefault(job.key, job)
         return list(seen.values())
 
 
@@ -182,6 +204,9 @@ def _settings(where: str, table: dict[str, Any], base: dict[str, Any]) -> dict[s
         if s[k]:
             allowed = _solver_keywords(k)
             for name in s[k]:
+                if name in RENAMED_OPTIONS and name not in allowed:
+                    new, how = RENAMED_OPTIONS[name]
+                    raise SpecError(f"{where}: '{name}' in {k} is the old name of '{new}' ({how})")
                 if name not in allowed:
                     close = difflib.get_close_matches(name, sorted(allowed), n=2)
                     hint = f"; did you mean {' or '.join(repr(c) for c in close)}?" if close else ""
@@ -232,6 +257,9 @@ def _system(where: str, item: Any, base_dir: str) -> list[System]:
         _check_keys(where, item, _SYSTEM_KEYS)
         if ("atom" in item) == ("xyz" in item):
             raise SpecError(f"{where}: a system table needs exactly one of 'atom' or 'xyz'")
+        if "atom" in item and "multiplicity" in item:
+            raise SpecError(f"{where}: an atom takes no 'multiplicity' (it is solved in its Hund's-rule ground "
+                            "state); for a spin-state pair give multiplicities = [m1, m2]")
         charge = item.get("charge", 0)
         if not isinstance(charge, int):
             raise SpecError(f"{where}: 'charge' must be an integer")
@@ -315,8 +343,13 @@ def parse_spec(text: str, base_dir: str = ".", origin: str = "spec") -> SweepSpe
                 if why:
                     raise SpecError(f"{where}: {kind} of '{s.name}': {why}")
         settings = _settings(where, st, base)
-        studies.append(Study(kinds=kinds, systems=tuple(dict.fromkeys(systems)), functionals=funcs,
-                             settings=tuple(settings.items()), label=str(st.get("label", ""))))
+        study = Study(kinds=kinds, systems=tuple(dict.fromkeys(systems)), functionals=funcs,
+                      settings=tuple(settings.items()), label=str(st.get("label", "")))
+        try:
+            check_jobs(study.jobs(), radial_hint='; set atoms = "basis" for Gaussian-basis atoms')
+        except InputError as exc:
+            raise SpecError(f"{where}: {exc}") from None
+        studies.append(study)
     return SweepSpec(
         name=str(doc.get("name", os.path.splitext(os.path.basename(origin))[0])),
         description=str(doc.get("description", "")),
@@ -331,6 +364,37 @@ def load_spec(path: str) -> SweepSpec:
     """Read and parse a spec file; XYZ paths in it are relative to its folder."""
     if not os.path.isfile(path):
         raise SpecError(f"sweep spec '{path}' does not exist")
-    with open(path, encoding="utf-8") as fh:
-        text = fh.read()
-    return parse_spec(text, base_dir=os.path.dirname(os.path.abspath(path)), origin=os.path.basename(path))
+    with open(path, "rb") as fh:
+        raw = fh.read()
+    return parse_spec(_decode(raw, path), base_dir=os.path.dirname(os.path.abspath(path)),
+                      origin=os.path.basename(path))
+
+
+def _decode(raw: bytes, path: str) -> str:
+    """The text of a spec file, which TOML requires to be UTF-8; anything else is refused, naming the spot."""
+    try:
+        return raw.decode("utf-8")
+    except UnicodeDecodeError as exc:
+        line = raw[:exc.start].count(b"\n") + 1
+        hint = ""
+        try:
+            raw.decode("cp1252")
+            hint = " (it looks like Latin-1/Windows-1252 text)"
+        except UnicodeDecodeError:
+            pass
+        raise SpecError(f"sweep spec '{path}' is not UTF-8{hint}: byte 0x{raw[exc.start]:02x} on line {line}; "
+                        "TOML files must be UTF-8, so re-save it as UTF-8 (e.g. iconv -f latin1 -t utf-8)") from None
+
+
+def molecule_from_xyz_file(path: str, name: str | None = None, charge: int = 0,
+                           multiplicity: int | None = None) -> System:
+    """A molecule from a structure file (any format :func:`ks1d.structure.read_structure` reads)."""
+    from ..gaussian.geometry import geometry_from_structure
+    from ..structure import read_structure
+
+    st = read_structure(path)
+    geometry_from_structure(st)  # refuses periodic cells and overlapping nuclei, with the file named
+    xyz = normalise_xyz(st.to_xyz(comment=""))
+    stem = os.path.splitext(os.path.basename(path))[0]
+    return System(name=name or stem, kind="molecule", charge=int(charge), multiplicity=multiplicity,
+                  xyz=xyz, source=f"structure file {os.path.basename(path)}")

@@ -9,8 +9,8 @@ Two sources feed this layer:
   energies, and the NIST LSD/LDA and Hartree–Fock-limit total energies.
   Every value there carries its own source and from-memory flag, which this
   module passes on unchanged.
-* **The G2-1 set as carried by ASE** (``ase.data.g2_1``, an optional
-  dependency: ``pip install ase`` or the ``sweep`` extra).  It supplies the
+* **The G2-1 set as carried by ASE** (``ase.data.g2_1``; ASE is a core
+  dependency of ks1d).  It supplies the
   55 molecules' geometries (MP2(full)/6-31G(d)), their multiplicities (from
   the magnetic moments), experimental adiabatic ionisation energies of its
   atoms and molecules (NIST CCCBDB) and the atomization energies D_e that
@@ -25,13 +25,16 @@ known: the sweep still reports the computed value).
 """
 from __future__ import annotations
 
+import re
 from dataclasses import dataclass
 from functools import lru_cache
 from typing import Any
 
-from .. import units
-from ..errors import InputError
-from .systems import System
+from ... import elements, units
+from ...errors import InputError
+from ...quantities import quantity as quantity_entry
+from ...reference import data
+from .systems import System, diatomic_xyz, lowest_multiplicity
 
 #: Description of the G2-1 source used in every reference it yields.
 G2_SOURCE = (
@@ -62,20 +65,11 @@ class Reference:
         }
 
 
-class DatasetUnavailable(InputError):
-    """A built-in dataset whose optional dependency is not installed."""
-
-
 # ------------------------------------------------------------------ G2-1 / ASE
 @lru_cache(maxsize=1)
 def _g2():
-    try:
-        from ase.data import g2_1
-    except ImportError:
-        raise DatasetUnavailable(
-            "the G2-1 molecule set is read through ASE (ase.data.g2_1); install it with "
-            "'pip install ase' or 'pip install ks1d[sweep]'"
-        ) from None
+    from ase.data import g2_1  # imported on first use: ASE's start-up is slow
+
     return g2_1
 
 
@@ -182,19 +176,8 @@ def g2_1_singlet_triplet(name: str) -> Reference:
 
 
 # --------------------------------------------------------- ks1d.reference layer
-def _loader():
-    try:
-        from ..reference import data
-    except ImportError:
-        return None
-    return data
-
-
 def _from_loader(quantity: str, key: str, ours: str) -> Reference | None:
     """A value from :func:`ks1d.reference.data.reference_value`, or None when it has none."""
-    data = _loader()
-    if data is None:
-        return None
     try:
         rv = data.reference_value(quantity, key)
     except InputError:  # UnknownReference / NoReferenceValue: nothing to compare with
@@ -205,15 +188,10 @@ def _from_loader(quantity: str, key: str, ours: str) -> Reference | None:
 
 def diatomic_names() -> tuple[str, ...]:
     """Diatomics with experimental r_e in ks1d's reference data (formula keys, e.g. 'N2', 'CO')."""
-    data = _loader()
-    if data is None:
-        return ()
     return tuple(r.key for r in data.reference_table("diatomic_bond_length"))
 
 
 def _split_formula(formula: str) -> tuple[str, str]:
-    import re
-
     parts = re.findall(r"([A-Z][a-z]?)(\d*)", formula)
     syms: list[str] = []
     for sym, n in parts:
@@ -224,51 +202,34 @@ def _split_formula(formula: str) -> tuple[str, str]:
 
 
 def diatomic(formula: str) -> System:
-    """A diatomic at its experimental r_e (ks1d reference data), ground-state multiplicity.
+    """A diatomic at its experimental r_e (ks1d reference data), in its ground-state multiplicity.
 
-    The multiplicity is the G2-1 one (from ASE's magnetic moments) when the
-    molecule is in that set, else 1 for an even and 2 for an odd electron count.
+    The multiplicity is read from the ground-state term symbol in the reference
+    data's note ('ground state X 3Sigma_g-'); without one it is the G2-1 one
+    (from ASE's magnetic moments) when the molecule is in that set, else the
+    lowest the electron count allows.  (For the 15 diatomics of ks1d's data the
+    three agree wherever more than one applies.)
     """
-    from .. import elements
-    from .systems import diatomic_xyz
+    from ... import elements
 
     ref = _from_loader("diatomic_bond_length", formula, "bond_length")
     if ref is None:
-        known = ", ".join(diatomic_names()) or "none installed"
         raise InputError(f"no experimental bond length for diatomic '{formula}' in ks1d's reference data "
-                         f"(known: {known})")
+                         f"(known: {', '.join(diatomic_names())})")
     a, b = _split_formula(formula)
-    mult = None
-    try:
-        if formula in g2_1_names():
-            mult = g2_1_molecule(formula).multiplicity
-    except DatasetUnavailable:
-        pass
-    if mult is None:
-        mult = 1 if (elements.atomic_number(a) + elements.atomic_number(b)) % 2 == 0 else 2
+    term = re.search(r"\bX\s+(\d)", data.reference_value("diatomic_bond_length", formula).note or "")
+    if term:
+        mult = int(term.group(1))
+    elif formula in g2_1_names():
+        mult = g2_1_molecule(formula).multiplicity
+    else:
+        mult = lowest_multiplicity(elements.atomic_number(a) + elements.atomic_number(b))
     return System(name=formula, kind="molecule", multiplicity=mult, xyz=diatomic_xyz(a, b, ref.value),
                   dataset="diatomics", key=formula,
                   source=f"at the experimental r_e = {ref.value} angstrom ({ref.source})")
 
 
 # ------------------------------------------------------------------- dispatch
-#: Display unit of each quantity; tables and statistics use these.
-UNITS: dict[str, str] = {
-    "total_energy": "hartree",
-    "ionisation_potential": "eV",
-    "electron_affinity": "eV",
-    "atomization_energy": "kcal/mol",
-    "bond_length": "angstrom",
-    "harmonic_frequency": "cm^-1",
-    "spin_splitting": "eV",
-    "sd_promotion": "eV",
-    "sp_promotion": "eV",
-    "homo_vs_ip": "eV",
-    "spin_polarization_energy": "eV",
-    "basis_set_error": "mhartree",
-    "dissociation_energy": "eV",
-}
-
 _UNIT_ALIASES = {
     "ha": "hartree", "hartree": "hartree", "eh": "hartree", "ev": "eV",
     "kcal/mol": "kcal/mol", "kj/mol": "kJ/mol", "angstrom": "angstrom", "å": "angstrom",
@@ -295,7 +256,7 @@ def convert(value: float, unit_from: str, unit_to: str) -> float:
 def _in_unit(ref: Reference | None, quantity: str) -> Reference | None:
     if ref is None:
         return None
-    unit = UNITS[quantity]
+    unit = quantity_entry(quantity).unit
     if ref.unit == unit:
         return ref if ref.quantity == quantity else Reference(quantity, ref.key, ref.value, unit, ref.source,
                                                               ref.from_memory)
@@ -305,16 +266,9 @@ def _in_unit(ref: Reference | None, quantity: str) -> Reference | None:
 
 def _atom_ip(system: System) -> Reference | None:
     ref = _from_loader("ionisation_energy", system.symbol, "ionisation_potential")
-    if ref is None and system.symbol in _g2_atoms_or_empty():
+    if ref is None and system.symbol in g2_1_atom_names():
         ref = g2_1_ionization_energy(system.symbol)
     return ref
-
-
-def _g2_atoms_or_empty() -> tuple[str, ...]:
-    try:
-        return g2_1_atom_names()
-    except DatasetUnavailable:
-        return ()
 
 
 #: Quantities of neutral atoms whose reference is one value per element in ks1d's data.

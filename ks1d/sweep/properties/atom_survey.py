@@ -33,26 +33,26 @@ the calculations behind it.
   conservative retry) is recorded in ``details["failed_steps"]`` and its
   quantity is left out; the neutral atom failing fails the job.
 
+* ``atom_survey_basis`` — IP, EA and −ε_HOMO from Gaussian-basis atoms with
+  integer occupations, for functionals the radial solver cannot do.
+
 * ``basis_set_error`` — ΔE = E(basis) − E(radial limit) of the neutral atom
   in mHa (:func:`ks1d.validate.basis_error.atom_basis_error`).
 
-* ``diatomic_survey`` — r_e and ω_e from the energy scan of ``diatomic_curve``
-  plus the dissociation energy from the ground-state atoms in the same basis:
-
-      D_e = E(A) + E(B) − E_fit(r_e),    D_0 ≈ D_e − ½ ω_e
-
-  (harmonic zero-point energy), reported as ``dissociation_energy`` (eV) so
-  that it compares with the experimental D_0.  The atoms are UKS
-  determinants at their Hund's-rule multiplicity with integer occupations
-  (common practice for binding energies).
+The diatomic part of the report's battery is :func:`.diatomic.diatomic_survey`.
 """
 from __future__ import annotations
 
+import time
 from typing import Any
 
-from .. import units
-from ..errors import CalculationError, InputError
+from ... import elements, units
+from ...errors import CalculationError, ConvergenceError, InputError
+from ...occupations import ground_state_multiplicity
+from ...xc import resolve_functional
 from . import calculations
+from .configurations import sd_configurations, sp_configurations
+from .context import Context, name_step
 
 EV = units.HARTREE_TO_EV
 
@@ -63,10 +63,8 @@ EV = units.HARTREE_TO_EV
 RETRY_SCF = {"damping": 0.8, "history": 8, "max_iterations": 300, "residual_tolerance": 1e-5}
 
 
-def _atom_energy(c, label: str, **kw) -> dict[str, Any]:
+def _atom_energy(c: Context, label: str, **kw) -> dict[str, Any]:
     """A radial energy; on non-convergence one retry with :data:`RETRY_SCF` (recorded in details)."""
-    from ..errors import ConvergenceError
-
     try:
         return c.energy(label, **kw)
     except ConvergenceError:
@@ -77,16 +75,16 @@ def _atom_energy(c, label: str, **kw) -> dict[str, Any]:
         return summary
 
 
-def _or_none(c, label: str, compute) -> dict[str, Any] | None:
+def _or_none(c: Context, label: str, compute) -> dict[str, Any] | None:
     """``compute()``, or ``None`` with the failure recorded in ``details["failed_steps"]``."""
     try:
         return compute()
     except (CalculationError, InputError) as exc:
-        c.details.setdefault("failed_steps", []).append({"step": label, "error": str(exc).splitlines()[0]})
+        c.failed_step(label, exc)
         return None
 
 
-def _optional(c, label: str, **kw) -> dict[str, Any] | None:
+def _optional(c: Context, label: str, **kw) -> dict[str, Any] | None:
     """Like :func:`_atom_energy`, but a failure is recorded and gives ``None``."""
     return _or_none(c, label, lambda: _atom_energy(c, label, **kw))
 
@@ -96,27 +94,24 @@ def _optional(c, label: str, **kw) -> dict[str, Any] | None:
 SB_GRADIENT_TOLERANCE = 1e-4
 
 
-def _gaussian_atom(c, label: str, symbol: str, charge: int, basis: str, smearing: float = 0.0) -> dict[str, Any]:
+def _gaussian_atom(c: Context, label: str, symbol: str, charge: int, basis: str,
+                   smearing: float = 0.0) -> dict[str, Any]:
     """One Gaussian-basis atom (Hund's-rule multiplicity), recorded like the other solver calls."""
-    from .systems import atom_multiplicity
-
-    mult = atom_multiplicity(symbol, charge)
+    mult = ground_state_multiplicity(symbol, charge)
     try:
         summary, dt = calculations.molecule(f"1\n{symbol}\n{symbol} 0 0 0\n", c.functional, basis, charge=charge,
                                             multiplicity=mult,
                                             options={"smearing": smearing,
                                                      "residual_tolerance": SB_GRADIENT_TOLERANCE})
     except Exception as exc:
-        if not hasattr(exc, "sweep_step"):
-            exc.sweep_step = label  # type: ignore[attr-defined]
+        name_step(exc, label)
         raise
-    c.calculations.append({"label": label, "solver": "gaussian", "species": symbol, "charge": charge,
-                           "multiplicity": mult, "basis": basis, "smearing": smearing, **summary})
-    c.seconds.append(dt)
+    c.record({"label": label, "solver": "gaussian", "species": symbol, "charge": charge,
+              "multiplicity": mult, "basis": basis, "smearing": smearing, **summary}, dt)
     return summary
 
 
-def _symmetry_broken(c, label: str, symbol: str, charge: int, e_radial: float) -> float:
+def _symmetry_broken(c: Context, label: str, symbol: str, charge: int, e_radial: float) -> float:
     """Estimate of the integer-occupation (symmetry-broken) atom at the basis-set limit.
 
         E_int(limit) ≈ E_sph(limit) + [E_int(B) − E_sph(B)]
@@ -127,8 +122,7 @@ def _symmetry_broken(c, label: str, symbol: str, charge: int, e_radial: float) -
     exchange it carries the ensemble form, so E_sph(limit) is then the radial ensemble atom.  Spherical
     determinants (closed, half-filled and s¹ shells) need no correction.
     """
-    from ..validate.basis_error import SPHERICAL_SMEARING, spherical_determinant
-    from ..xc import resolve_functional
+    from ...validate.basis_error import SPHERICAL_SMEARING, spherical_determinant
 
     if spherical_determinant(symbol, charge):
         return e_radial
@@ -145,16 +139,7 @@ def _symmetry_broken(c, label: str, symbol: str, charge: int, e_radial: float) -
     return e_ref + (e_int - e_sph)
 
 
-def _is_closed_shell(symbol: str) -> bool:
-    from .systems import atom_multiplicity
-
-    return atom_multiplicity(symbol, 0) == 1
-
-
-def atom_survey(c) -> dict[str, float]:
-    from .. import elements
-    from .properties import sd_configurations
-
+def atom_survey(c: Context) -> dict[str, float]:
     s = c.system
     if not s.is_atom or s.charge != 0:
         raise InputError("atom_survey needs a neutral atom")
@@ -173,7 +158,7 @@ def atom_survey(c) -> dict[str, float]:
         eps = anion["homo_energy"]
         c.details["anion_homo_energy"] = eps
         c.details["anion_unbound_orbital"] = eps is not None and eps > 0
-    if _is_closed_shell(sym):
+    if ground_state_multiplicity(sym, 0) == 1:  # closed shell
         values["spin_polarization_energy"] = 0.0
         c.details["spin_polarization"] = "closed shell: the polarized and restricted atoms coincide"
     else:
@@ -191,8 +176,7 @@ def atom_survey(c) -> dict[str, float]:
                 values["electron_affinity"] = (e0_sb - _symmetry_broken(c, f"{sym} anion", sym, -1,
                                                                         anion["total_energy"])) * EV
         except (CalculationError, InputError) as exc:
-            step = getattr(exc, "sweep_step", "symmetry-breaking correction")
-            c.details.setdefault("failed_steps", []).append({"step": step, "error": str(exc).splitlines()[0]})
+            c.failed_step(getattr(exc, "sweep_step", "symmetry-breaking correction"), exc)
             values.pop("ionisation_potential", None)
             values.pop("electron_affinity", None)
     ground = elements.element(sym).ground_configuration
@@ -211,28 +195,7 @@ def atom_survey(c) -> dict[str, float]:
     return values
 
 
-def sp_configurations(symbol: str) -> tuple[str, str]:
-    """(ns² npᵏ, ns¹ npᵏ⁺¹) configurations of a p-block atom with 1 ≤ k ≤ 4, from its ground configuration."""
-    from .. import elements
-
-    ground = elements.element(symbol).ground_configuration
-    core, _, rest = ground.partition("] ")
-    toks = (rest if ground.startswith("[") else ground).split()
-    if len(toks) < 2:
-        raise InputError(f"{symbol} has no open p shell")
-    s_tok, p_tok = toks[-2], toks[-1]
-    n = s_tok[:-2] if s_tok.endswith("s2") else None
-    if n is None or not n.isdigit() or not p_tok.startswith(f"{n}p"):
-        raise InputError(f"{symbol}: s→p promotion needs a ground configuration ending in ns2 npk")
-    k = int(p_tok[len(n) + 1:] or 1)
-    if not 1 <= k <= 4:
-        raise InputError(f"{symbol}: s→p promotion needs 1-4 p electrons")
-    head = (core + "] " if ground.startswith("[") else "") + " ".join(toks[:-2])
-    head = head.rstrip() + " " if head.strip() else ""
-    return f"{head}{n}s2 {n}p{k}", f"{head}{n}s1 {n}p{k + 1}"
-
-
-def atom_survey_basis(c) -> dict[str, float]:
+def atom_survey_basis(c: Context) -> dict[str, float]:
     """IP, EA and −ε_HOMO of one atom from Gaussian-basis atoms with integer occupations.
 
     For functionals the radial solver cannot do (range-separated hybrids): each species at its
@@ -265,10 +228,8 @@ def atom_survey_basis(c) -> dict[str, float]:
     return values
 
 
-def basis_set_error(c) -> dict[str, float]:
-    import time
-
-    from ..validate.basis_error import atom_basis_error
+def basis_set_error(c: Context) -> dict[str, float]:
+    from ...validate.basis_error import atom_basis_error
 
     s = c.system
     if not s.is_atom or s.charge != 0:
@@ -278,7 +239,7 @@ def basis_set_error(c) -> dict[str, float]:
     t0 = time.perf_counter()
     row = atom_basis_error(s.symbol, c.settings["basis"], xc=c.functional,
                            precision=c.settings.get("precision", "normal"))
-    c.seconds.append(time.perf_counter() - t0)
+    c.seconds.append(time.perf_counter() - t0)  # one timing for both calls below
     c.calculations.append({"label": f"{s.symbol} in {c.settings['basis']}", "solver": "gaussian",
                            "species": s.symbol, "charge": 0, "multiplicity": row.multiplicity,
                            "basis": c.settings["basis"], "total_energy": row.basis_energy,
@@ -290,54 +251,18 @@ def basis_set_error(c) -> dict[str, float]:
     return {"basis_set_error": row.error_mhartree}
 
 
-def _ground_multiplicity_of_diatomic(system) -> int:
-    """2S+1 from the term symbol in the reference data's note ('ground state X 3Sigma_g-'), else parity."""
-    import re
-
-    from ..reference import data
-
-    if system.multiplicity is not None:
-        return system.multiplicity
-    try:
-        note = data.reference_value("diatomic_bond_length", system.key or "").note or ""
-    except InputError:
-        note = ""
-    m = re.search(r"\bX\s+(\d)", note)
-    return int(m.group(1)) if m else system.ground_multiplicity()
+#: Step-label endings of :func:`atom_survey` → the quantity the step feeds (for flags on failed steps).
+_STEP_QUANTITIES = ((" cation", "ionisation_potential"), (" anion", "electron_affinity"),
+                    (" spin-restricted", "spin_polarization_energy"))
 
 
-def diatomic_system(formula: str):
-    """A diatomic of ks1d's reference data at its experimental r_e, with its ground-state multiplicity."""
-    from dataclasses import replace
-
-    from .datasets import diatomic
-
-    base = diatomic(formula)
-    return replace(base, multiplicity=_ground_multiplicity_of_diatomic(replace(base, multiplicity=None)))
-
-
-def diatomic_survey(c) -> dict[str, float]:
-    import numpy as np
-
-    from .properties import _diatomic_curve
-    from .systems import System
-
-    s = c.system
-    if not s.is_diatomic:
-        raise InputError("diatomic_survey needs a diatomic molecule")
-    values = _diatomic_curve(c)
-    # the fit of the last scan is E(R) − min E = Σ_j c_j (R − R̄)^j (ks1d.sweep.curvefit.fit_curve)
-    scan = c.details["scans"][-1]
-    r_b = np.asarray(scan["r_angstrom"]) * units.ANGSTROM_TO_BOHR
-    r_e = values["bond_length"] * units.ANGSTROM_TO_BOHR
-    fit = np.polynomial.Polynomial(c.details["fit_coefficients"])
-    e_min = float(min(scan["energy"]) + fit(r_e - r_b.mean()))
-    atoms = 0.0
-    for sym in s.symbols:
-        atom = System(name=sym, kind="atom", symbol=sym)
-        atoms += c.energy(f"{sym} atom in {c.settings['basis']}", system=atom, force_basis=True)["total_energy"]
-    d_e = (atoms - e_min) * EV
-    zpe = 0.5 * values["harmonic_frequency"] / units.HARTREE_TO_INV_CM * EV
-    c.details.update({"fitted_minimum_energy": e_min, "D_e_eV": d_e, "zero_point_energy_eV": zpe})
-    values["dissociation_energy"] = d_e - zpe
-    return values
+def quantity_of_step(label: str) -> str | None:
+    """Which survey quantity a failed or retried step (labelled by :func:`atom_survey`) feeds, if one."""
+    for ending, q in _STEP_QUANTITIES:
+        if label.endswith(ending):
+            return q
+    if " s→d " in label:
+        return "sd_promotion"
+    if " s→p " in label:
+        return "sp_promotion"
+    return None

@@ -16,7 +16,7 @@ import math
 from dataclasses import dataclass
 from typing import Any, Sequence
 
-from .results import ResultRow, functionals_of, ordered
+from .collect import ResultRow, functionals_of, ordered
 
 
 def mean_signed_error(errors: Sequence[float]) -> float:

@@ -13,14 +13,14 @@ from __future__ import annotations
 import os
 from typing import Sequence
 
-from ..errors import InputError
-from .results import ResultRow, functionals_of, ordered, systems_of
-from .tables import QUANTITY_TITLES, unit_text
+from ...errors import InputError
+from ...quantities import quantity, unit_text
+from .collect import ResultRow, functionals_of, ordered, systems_of
 
 _MARKERS = "osD^vP*Xph"
 
 
-def _pyplot():
+def pyplot():
     try:
         import matplotlib
     except ImportError:
@@ -42,18 +42,9 @@ def _save(fig, directory: str, stem: str, formats: Sequence[str]) -> list[str]:
     return paths
 
 
-#: Plot titles in matplotlib mathtext (the tables' titles use Unicode instead).
-PLOT_TITLES = {
-    "atomization_energy": "Atomization energy $D_e$",
-    "bond_length": "Bond length $r_e$",
-    "harmonic_frequency": r"Harmonic frequency $\omega_e$",
-    "sd_promotion": r"s$\to$d promotion $E(d^{n+1}s^1) - E(d^n s^2)$",
-    "homo_vs_ip": r"$-\varepsilon_\mathrm{HOMO}$ against the experimental IP",
-}
-
-
 def _title(q: str) -> str:
-    return PLOT_TITLES.get(q) or QUANTITY_TITLES.get(q, q)
+    """The quantity's title in matplotlib mathtext (the tables' titles use Unicode instead)."""
+    return quantity(q).mathtext_title
 
 
 def error_distribution(plt, rows: Sequence[ResultRow], q: str):
@@ -118,7 +109,7 @@ def per_system_bars(plt, rows: Sequence[ResultRow], q: str, use_errors: bool):
 
 def write_plots(directory: str, rows: Sequence[ResultRow], formats: Sequence[str] = ("png", "svg")) -> list[str]:
     """Draw every plot for every quantity into ``directory``; return the paths written."""
-    plt = _pyplot()
+    plt = pyplot()
     os.makedirs(directory, exist_ok=True)
     written: list[str] = []
     for q in ordered(r.quantity for r in rows):

@@ -4,16 +4,20 @@ A job's key is the SHA-256 of the canonical JSON of its system identity,
 property, functional, settings and the ks1d version, so the same job in two
 sweeps (or two runs of one sweep) is stored once, and a change of any input
 — or of ks1d itself — makes a new job.
+
+The engine treats the system as opaque: any object with a ``name``, an
+``identity()`` (the dict that enters the key) and a ``to_dict()`` will do.
+Turning the dict back into a system is the registry's business
+(:meth:`Job.from_dict` takes the decoder).
 """
 from __future__ import annotations
 
 import hashlib
 import json
 from dataclasses import dataclass, field
-from typing import Any
+from typing import Any, Callable
 
-from .._version import __version__
-from .systems import System
+from ..._version import __version__
 
 
 def canonical_json(obj: Any) -> str:
@@ -25,7 +29,7 @@ def canonical_json(obj: Any) -> str:
 class Job:
     """One unit of sweep work, run by one worker, stored as one row."""
 
-    system: System
+    system: Any  # see the module docstring: name, identity(), to_dict()
     property: str
     functional: str
     settings: tuple[tuple[str, Any], ...] = field(default=())
@@ -48,10 +52,6 @@ class Job:
     def key(self) -> str:
         return hashlib.sha256(canonical_json(self.identity()).encode()).hexdigest()
 
-    @property
-    def label(self) -> str:
-        return f"{self.property}/{self.system.name}/{self.functional}"
-
     def to_dict(self) -> dict[str, Any]:
         return {
             "system": self.system.to_dict(),
@@ -62,9 +62,10 @@ class Job:
         }
 
     @classmethod
-    def from_dict(cls, d: dict[str, Any]) -> "Job":
+    def from_dict(cls, d: dict[str, Any], system_from_dict: Callable[[dict[str, Any]], Any]) -> "Job":
+        """The job of :meth:`to_dict`; ``system_from_dict`` rebuilds its system (the registry's decoder)."""
         return cls(
-            system=System.from_dict(d["system"]),
+            system=system_from_dict(d["system"]),
             property=d["property"],
             functional=d["functional"],
             settings=freeze_settings(d.get("settings") or {}),

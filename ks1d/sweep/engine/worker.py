@@ -1,10 +1,12 @@
-"""What runs inside a worker: one job in, one outcome dict out.
+"""What runs inside a worker: one job and the name of its registry in, one outcome dict out.
 
 Kept free of heavy imports at module level so that a freshly spawned worker
 can set its thread limits (:func:`limit_threads`) before numpy and pyscf
-load.  The outcome separates what the physics produced (``outputs``, which
-must be identical whichever executor ran the job) from how it ran
-(``seconds``, ``solver_seconds``, ``worker``).
+load.  The registry (see :mod:`ks1d.sweep.engine.registry`) is found by its
+name in every worker process, so all three executors run the same code.  The
+outcome separates what the physics produced (``outputs``, which must be
+identical whichever executor ran the job) from how it ran (``seconds``,
+``solver_seconds``, ``worker``).
 """
 from __future__ import annotations
 
@@ -32,16 +34,20 @@ def limit_threads(n: int = 1) -> None:
         pass
 
 
-def run_job(job: dict[str, Any]) -> dict[str, Any]:
-    """Run one job given as :meth:`Job.to_dict`; never raises for a job's own failure."""
+def run_job(job: dict[str, Any], registry: str) -> dict[str, Any]:
+    """Run one job given as :meth:`Job.to_dict` with the registry named ``registry``.
+
+    Never raises for a job's own failure: the error is returned in the outcome.
+    """
     from .jobs import Job
-    from .properties import run_property
+    from .registry import load_registry
 
     t0 = time.perf_counter()
     worker = f"{socket.gethostname()}:{os.getpid()}"
     try:
-        j = Job.from_dict(job)
-        result = run_property(j.property, j.system, j.functional, j.settings_dict)
+        kinds = load_registry(registry)
+        j = Job.from_dict(job, kinds.system_from_dict)
+        result = kinds.run(j)
     except Exception as exc:  # noqa: BLE001 - every failure is stored with its error
         return {
             "status": "failed",
@@ -62,7 +68,7 @@ def run_job(job: dict[str, Any]) -> dict[str, Any]:
 
 
 def _describe(exc: BaseException) -> str:
-    from ..errors import Ks1dError
+    from ...errors import Ks1dError
 
     step = getattr(exc, "sweep_step", None)
     prefix = f"{step}: " if step else ""

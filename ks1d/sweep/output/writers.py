@@ -4,10 +4,9 @@ from __future__ import annotations
 from dataclasses import dataclass
 from typing import Any, Sequence
 
-from .results import FailureRow, ResultRow, collect
-from .spec import SweepSpec
+from ..engine.store import Store
+from .collect import FailureRow, ResultRow, collect
 from .statistics import ErrorStatistics, error_statistics
-from .store import Store
 
 
 @dataclass(frozen=True)
@@ -26,8 +25,12 @@ class SweepReport:
                 "failures": [f.to_dict() for f in self.failures], "pending": self.pending}
 
 
-def build_report(store_path: str, spec: SweepSpec | None = None) -> SweepReport:
-    """Collect results from a store: all jobs in it, or only those of ``spec``."""
+def build_report(store_path: str, spec=None) -> SweepReport:
+    """Collect results from a store: all jobs in it, or only those of ``spec``.
+
+    ``spec`` is a :class:`ks1d.sweep.spec.SweepSpec` (anything with ``name`` and ``jobs()``);
+    the output layer needs only its job keys, so it does not import the spec module.
+    """
     with Store(store_path) as store:
         keys = {j.key for j in spec.jobs()} if spec is not None else None
         all_rows = list(store.rows())

@@ -13,8 +13,8 @@ import math
 
 import numpy as np
 
-from .. import elements, units
-from ..errors import CalculationError, InputError
+from ... import elements, units
+from ...errors import CalculationError, InputError
 
 
 def _amu_in_electron_masses() -> float:

@@ -1,25 +1,30 @@
-"""Systems a sweep runs over: atoms and ions by symbol, molecules from XYZ.
+"""Systems a sweep runs over: atoms and ions by symbol, molecules from XYZ text.
 
 A :class:`System` is an immutable description with everything a solver call
 needs (element and charge, or XYZ text, charge and multiplicity).  Its
 :meth:`System.identity` is what enters the job hash, so editing an XYZ file
 gives new jobs while renaming nothing does not.
 
-Atomic ground-state multiplicities follow Hund's first rule applied to each
-open subshell of the ground configuration in :mod:`ks1d.elements`:
-2S + 1 = 1 + Σ_shells min(n, 2(2l+1) − n).
+Multiplicities (:meth:`System.multiplicity_at`), one rule per kind of system:
+
+* atoms and atomic ions: :func:`ks1d.occupations.ground_state_multiplicity`, the spin of the
+  radial solver's spin-polarized ground state (Hund's first rule on the NIST ground
+  configuration, ions by ks1d's ionisation rules), so Gaussian-basis atoms have the same spin;
+* a molecule: its given multiplicity, else the lowest one its electron count allows
+  (1 for an even, 2 for an odd count);
+* a molecular ion formed by a property (IP, EA): one unpaired electron fewer than the
+  molecule, or a doublet from a singlet.
 """
 from __future__ import annotations
 
 import re
 from dataclasses import dataclass, field
-from typing import Any
+from typing import Any, Sequence
 
-from ..occupations import ground_state_multiplicity
-from .. import elements
-from ..errors import ConfigurationError, GeometryError, InputError
+from ... import elements
+from ...errors import ConfigurationError, GeometryError, InputError
+from ...occupations import ground_state_multiplicity
 
-_L_OF = {"s": 0, "p": 1, "d": 2, "f": 3, "g": 4}
 _ION = re.compile(r"^([A-Za-z]{1,2})(\d*)([+-])?$")
 
 
@@ -71,13 +76,21 @@ class System:
         return f"1\n{self.name}\n{self.symbol} 0.0 0.0 0.0\n"
 
     def ground_multiplicity(self) -> int:
-        """2S+1 of the system as used for Gaussian-basis calculations."""
+        """2S+1 of the system itself as used for Gaussian-basis calculations (see the module docstring)."""
         if self.multiplicity is not None:
             return self.multiplicity
         if self.is_atom:
-            return atom_multiplicity(self.symbol, self.charge)
-        nelec = sum(elements.atomic_number(s) for s in self.symbols) - self.charge
-        return 1 if nelec % 2 == 0 else 2
+            return ground_state_multiplicity(self.symbol, self.charge)
+        return lowest_multiplicity(sum(elements.atomic_number(s) for s in self.symbols) - self.charge)
+
+    def multiplicity_at(self, charge: int) -> int:
+        """2S+1 of this system's species at ``charge`` (its ions, for IPs and EAs; see the module docstring)."""
+        if self.is_atom:
+            return ground_state_multiplicity(self.symbol, charge)
+        if charge == self.charge:
+            return self.ground_multiplicity()
+        m0 = self.ground_multiplicity()
+        return m0 - 1 if m0 > 1 else 2
 
     def identity(self) -> dict[str, Any]:
         """The fields that define the calculation (what the job hash sees)."""
@@ -116,43 +129,12 @@ class System:
         return cls(**d)
 
 
+def lowest_multiplicity(n_electrons: int) -> int:
+    """1 for an even and 2 for an odd number of electrons."""
+    return 1 if n_electrons % 2 == 0 else 2
+
+
 # ---------------------------------------------------------------------- atoms
-def expand_configuration(config: str) -> list[tuple[int, int, int]]:
-    """'[Ar] 3d6 4s2' → [(1,0,2), (2,0,2), (2,1,6), ..., (3,2,6), (4,0,2)] as (n, l, occupation)."""
-    text = config.strip()
-    out: list[tuple[int, int, int]] = []
-    m = re.match(r"^\[([A-Z][a-z]?)\]\s*(.*)$", text)
-    if m:
-        core = elements.CORES.get(m.group(1))
-        if core is None:
-            raise ConfigurationError(f"unknown core [{m.group(1)}] in configuration '{config}'")
-        out.extend(expand_configuration(core))
-        text = m.group(2)
-    for tok in text.split():
-        t = re.match(r"^(\d+)([spdfg])(\d+)$", tok)
-        if not t:
-            raise ConfigurationError(f"cannot read subshell '{tok}' in configuration '{config}'")
-        out.append((int(t.group(1)), _L_OF[t.group(2)], int(t.group(3))))
-    return out
-
-
-def hund_unpaired(config: str) -> int:
-    """Number of unpaired electrons by Hund's first rule: Σ min(n, 2(2l+1) − n)."""
-    total = 0
-    for _, l, occ in expand_configuration(config):
-        cap = 2 * (2 * l + 1)
-        if occ > cap:
-            raise ConfigurationError(f"subshell with l={l} holds at most {cap} electrons, got {occ}")
-        total += min(occ, cap - occ)
-    return total
-
-
-def atom_multiplicity(symbol: str, charge: int = 0) -> int:
-    """Ground-state 2S+1 of an atom or atomic ion, as the radial solver assigns it
-    (Hund's rule on the NIST ground configuration, ions by ks1d.occupations' rules)."""
-    return ground_state_multiplicity(symbol, charge)
-
-
 def parse_atom(text: str) -> System:
     """'Fe' → neutral Fe; 'Na+' / 'O-' / 'Fe2+' / 'O2-' → ions."""
     m = _ION.match(text.strip())
@@ -172,9 +154,32 @@ def parse_atom(text: str) -> System:
     return System(name=name, kind="atom", symbol=sym, charge=charge, source="element symbol")
 
 
+def neutral_atom(symbol: str) -> System:
+    """The neutral atom ``symbol`` (a canonical element symbol)."""
+    return System(name=symbol, kind="atom", symbol=symbol, source="element symbol")
+
+
+def parse_elements(tokens: Sequence[str]) -> list[str]:
+    """Symbols, atomic numbers and ranges ('Li-Ne', '3-10') → element symbols in order, without repeats."""
+    out: list[str] = []
+    for tok in tokens:
+        for part in tok.replace(",", " ").split():
+            m = re.match(r"^([A-Za-z]{1,2}|\d+)-([A-Za-z]{1,2}|\d+)$", part)
+            if m:
+                a, b = elements.atomic_number(m.group(1)), elements.atomic_number(m.group(2))
+                if b < a:
+                    raise InputError(f"element range '{part}' runs backwards")
+                out.extend(elements.symbol(z) for z in range(a, b + 1))
+            else:
+                out.append(elements.symbol(part))
+    if not out:
+        raise InputError("give at least one element, e.g. 'ks1d refs H He Li-Ne --xc pbe'")
+    return list(dict.fromkeys(out))
+
+
 # ------------------------------------------------------------------ molecules
 def _structure(xyz: str):
-    from ..structure import parse_xyz_text
+    from ...structure import parse_xyz_text
 
     return parse_xyz_text(xyz)
 
@@ -184,22 +189,6 @@ def normalise_xyz(xyz: str) -> str:
     st = _structure(xyz)
     rows = [f"{sym} {x:.8f} {y:.8f} {z:.8f}" for sym, (x, y, z) in zip(st.symbols, st.positions)]
     return f"{len(rows)}\n\n" + "\n".join(rows) + "\n"
-
-
-def molecule_from_xyz_file(path: str, name: str | None = None, charge: int = 0,
-                           multiplicity: int | None = None) -> System:
-    """A molecule from a structure file (any format :func:`ks1d.structure.read_structure` reads)."""
-    import os
-
-    from ..gaussian.geometry import geometry_from_structure
-    from ..structure import read_structure
-
-    st = read_structure(path)
-    geometry_from_structure(st)  # refuses periodic cells and overlapping nuclei, with the file named
-    xyz = normalise_xyz(st.to_xyz(comment=""))
-    stem = os.path.splitext(os.path.basename(path))[0]
-    return System(name=name or stem, kind="molecule", charge=int(charge), multiplicity=multiplicity,
-                  xyz=xyz, source=f"structure file {os.path.basename(path)}")
 
 
 def bond_length(system: System) -> float:

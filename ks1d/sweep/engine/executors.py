@@ -1,10 +1,11 @@
 """Where jobs run: in this process, in a local process pool, or on Dask.
 
-Every executor takes job dicts and calls ``on_result(job, outcome)`` in the
-driving process as each job finishes, in completion order; the driver
-stores the outcome at once.  All three run the same function
-(:func:`ks1d.sweep.worker.run_job`) with one BLAS/OpenMP thread per worker,
-so the stored outputs do not depend on the executor.
+Every executor's ``run(jobs, on_result, registry)`` calls
+``on_result(job, outcome)`` in the driving process as each job finishes, in
+completion order; the driver stores the outcome at once.  All three run the
+same function (:func:`ks1d.sweep.engine.worker.run_job`) on the job's dict and
+the registry's name, with one BLAS/OpenMP thread per worker, so the stored
+outputs do not depend on the executor.
 """
 from __future__ import annotations
 
@@ -12,8 +13,9 @@ import os
 from contextlib import contextmanager
 from typing import Any, Callable, Sequence
 
-from ..errors import InputError
+from ...errors import InputError
 from .jobs import Job
+from .registry import Registry, registry_ref
 from .worker import THREAD_VARS, limit_threads, run_job
 
 OnResult = Callable[[Job, dict[str, Any]], None]
@@ -48,12 +50,13 @@ class InlineExecutor:
     name = "inline"
     workers = None
 
-    def run(self, jobs: Sequence[Job], on_result: OnResult) -> None:
-        from ..threads import single_threaded
+    def run(self, jobs: Sequence[Job], on_result: OnResult, registry: Registry | str) -> None:
+        from ...threads import single_threaded
 
+        ref = registry_ref(registry)
         with single_threaded():  # as in the pool and on Dask: one thread, the same numbers
             for job in jobs:
-                on_result(job, run_job(job.to_dict()))
+                on_result(job, run_job(job.to_dict(), ref))
 
 
 class PoolExecutor:
@@ -66,14 +69,15 @@ class PoolExecutor:
             raise InputError(f"a process pool needs at least 1 worker, got {workers}")
         self.workers = workers or default_workers()
 
-    def run(self, jobs: Sequence[Job], on_result: OnResult) -> None:
+    def run(self, jobs: Sequence[Job], on_result: OnResult, registry: Registry | str) -> None:
         import multiprocessing
         from concurrent.futures import FIRST_COMPLETED, ProcessPoolExecutor, wait
 
+        ref = registry_ref(registry)
         ctx = multiprocessing.get_context("spawn")
         with single_threaded_children(), ProcessPoolExecutor(max_workers=self.workers, mp_context=ctx,
                                                              initializer=limit_threads, initargs=(1,)) as pool:
-            futures = {pool.submit(run_job, j.to_dict()): j for j in jobs}
+            futures = {pool.submit(run_job, j.to_dict(), ref): j for j in jobs}
             try:
                 pending = set(futures)
                 while pending:
@@ -102,9 +106,10 @@ class DaskExecutor:
         self.address = address
         self.workers = None if address else (workers or default_workers())
 
-    def run(self, jobs: Sequence[Job], on_result: OnResult) -> None:
+    def run(self, jobs: Sequence[Job], on_result: OnResult, registry: Registry | str) -> None:
         from distributed import Client, LocalCluster, as_completed
 
+        ref = registry_ref(registry)
         cluster = None
         if self.address:
             try:
@@ -121,7 +126,7 @@ class DaskExecutor:
             client.run(limit_threads, 1)
             futures = {}
             for j in jobs:
-                fut = client.submit(run_job, j.to_dict(), key=f"ks1d-job-{j.key}", pure=False, retries=0)
+                fut = client.submit(run_job, j.to_dict(), ref, key=f"ks1d-job-{j.key}", pure=False, retries=0)
                 futures[fut.key] = (fut, j)
             for fut in as_completed([f for f, _ in futures.values()]):
                 on_result(futures[fut.key][1], _outcome_of(fut))

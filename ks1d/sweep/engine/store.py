@@ -9,7 +9,8 @@ Durability rules (what the kill-and-resume test checks):
   the moment its result arrives — one transaction per job;
 * the job key (a hash of system, property, functional, settings and ks1d
   version) is the primary key, so a job can never be stored twice; a rerun
-  asks the store which jobs are still to do and skips the rest.
+  asks the store which jobs are still to do and skips the rest;
+* outputs are strict JSON: a non-finite number is stored as null.
 
 Only the process that drives a sweep writes; workers return results to it.
 """
@@ -23,8 +24,9 @@ import time
 from dataclasses import dataclass
 from typing import Any, Iterable, Iterator
 
-from .._version import __version__
-from ..errors import InputError
+from ..._version import __version__
+from ...errors import InputError
+from ...serialize import plain
 from .jobs import Job
 
 SCHEMA_VERSION = 1
@@ -97,10 +99,6 @@ class JobRow:
     solver_seconds: float | None
     worker: str | None
     executor: str | None
-
-    @property
-    def job(self) -> Job:
-        return Job.from_dict(self.inputs)
 
     def to_dict(self) -> dict[str, Any]:
         return dict(self.__dict__)
@@ -179,7 +177,8 @@ class Store:
                 " solver_seconds=?, worker=?, executor=?, finished=? WHERE key=?",
                 (
                     status,
-                    json.dumps(outcome.get("outputs"), sort_keys=True) if status == "done" else None,
+                    json.dumps(plain(outcome.get("outputs")), sort_keys=True, allow_nan=False)
+                    if status == "done" else None,
                     outcome.get("error_type"),
                     outcome.get("error"),
                     outcome.get("seconds"),
@@ -250,6 +249,3 @@ class Store:
     def runs(self) -> list[dict[str, Any]]:
         cols = ("id", "sweep", "executor", "workers", "host", "version", "started", "finished", "done", "failed")
         return [dict(zip(cols, r)) for r in self._db.execute(f"SELECT {', '.join(cols)} FROM runs ORDER BY id")]
-
-    def sweeps(self) -> list[str]:
-        return [r[0] for r in self._db.execute("SELECT DISTINCT sweep FROM jobs ORDER BY sweep")]

@@ -5,10 +5,12 @@ import json
 from dataclasses import dataclass, field, replace
 from typing import Any, Iterable
 
-from .datasets import UNITS, reference_for
-from .jobs import Job
-from .properties import KINDS
-from .store import JobRow
+from ...quantities import quantity
+from ..engine.jobs import Job
+from ..engine.store import JobRow
+from ..properties.datasets import reference_for
+from ..properties.kinds import KINDS
+from ..properties.systems import System
 
 
 @dataclass(frozen=True)
@@ -63,7 +65,7 @@ def collect(rows: Iterable[JobRow], keys: set[str] | None = None) -> tuple[list[
             continue
         if r.status != "done" or not r.outputs:
             continue
-        job = Job.from_dict(r.inputs)
+        job = Job.from_dict(r.inputs, System.from_dict)
         values = r.outputs.get("values", {})
         for q in KINDS[job.property].quantities if job.property in KINDS else values:
             if q not in values:
@@ -71,7 +73,7 @@ def collect(rows: Iterable[JobRow], keys: set[str] | None = None) -> tuple[list[
             ref = reference_for(q, job.system, job.functional, job.settings_dict)
             v = float(values[q])
             results.append(ResultRow(
-                system=job.system.name, quantity=q, functional=label[r.key], value=v, unit=UNITS.get(q, ""),
+                system=job.system.name, quantity=q, functional=label[r.key], value=v, unit=quantity(q).unit,
                 reference=None if ref is None else ref.value,
                 error=None if ref is None else v - ref.value,
                 reference_source=None if ref is None else ref.source,

@@ -16,39 +16,11 @@ import json
 import os
 from typing import Any, Sequence
 
-from .._version import __version__
-from .results import FailureRow, ResultRow, functionals_of, ordered, systems_of
+from ..._version import __version__
+from ...quantities import fmt, quantity, unit_text
+from ..properties.kinds import quantities_of
+from .collect import FailureRow, ResultRow, functionals_of, ordered, systems_of
 from .statistics import ErrorStatistics
-
-_DECIMALS = {"hartree": 6, "mhartree": 3, "eV": 3, "kcal/mol": 2, "angstrom": 4, "cm^-1": 1}
-_UNIT_TEXT = {"angstrom": "Å", "cm^-1": "cm⁻¹", "mhartree": "mHa"}
-
-QUANTITY_TITLES = {
-    "total_energy": "Total energy",
-    "ionisation_potential": "Ionisation potential",
-    "electron_affinity": "Electron affinity",
-    "atomization_energy": "Atomization energy D_e",
-    "bond_length": "Bond length r_e",
-    "harmonic_frequency": "Harmonic frequency ω_e",
-    "spin_splitting": "Spin-state splitting",
-    "sd_promotion": "s→d promotion energy E(dⁿ⁺¹s¹) − E(dⁿs²)",
-    "sp_promotion": "s→p promotion energy E(ns¹npᵏ⁺¹) − E(ns²npᵏ)",
-    "homo_vs_ip": "−ε_HOMO against the experimental IP",
-    "spin_polarization_energy": "Spin-polarization energy E_restricted − E_polarized",
-    "basis_set_error": "Basis-set error E(basis) − E(radial limit)",
-    "dissociation_energy": "Dissociation energy D_0 = D_e − ½ω_e",
-}
-
-
-def fmt(value: float | None, unit: str, signed: bool = False) -> str:
-    if value is None:
-        return ""
-    d = _DECIMALS.get(unit, 4)
-    return f"{value:+.{d}f}" if signed else f"{value:.{d}f}"
-
-
-def unit_text(unit: str) -> str:
-    return _UNIT_TEXT.get(unit, unit)
 
 
 # ----------------------------------------------------------------------- CSV
@@ -118,8 +90,8 @@ def statistics_markdown(stats: Sequence[ErrorStatistics], quantity: str | None =
     for s in chosen:
         row = ([s.quantity] if quantity is None else []) + [s.functional, str(s.n)]
         if s.n:
-            row += [fmt(s.mse, s.unit, True), fmt(s.mae, s.unit), fmt(s.rms, s.unit), fmt(s.max_abs, s.unit),
-                    ", ".join(s.worst_systems)]
+            row += [fmt(s.mse, s.quantity, True), fmt(s.mae, s.quantity), fmt(s.rms, s.quantity),
+                    fmt(s.max_abs, s.quantity), ", ".join(s.worst_systems)]
         else:
             row += ["", "", "", "", "(no reference)"]
         body.append(row)
@@ -138,7 +110,7 @@ def mae_overview_markdown(stats: Sequence[ErrorStatistics]) -> str:
         row = [f"{q} ({unit_text(unit)})"]
         for f in funcs:
             st = by.get((q, f))
-            row.append(f"{fmt(st.mae, st.unit)} ({st.n})" if st is not None and st.n else "")
+            row.append(f"{fmt(st.mae, st.quantity)} ({st.n})" if st is not None and st.n else "")
         body.append(row)
     return _md_table(["MAE (N)"] + funcs, body)
 
@@ -156,31 +128,28 @@ def results_markdown(sweep: str, rows: Sequence[ResultRow], stats: Sequence[Erro
         out += ["## Statistics", "", statistics_markdown(stats), ""]
         units = ordered((s.quantity, s.unit) for s in stats)
         out += ["Units: " + "; ".join(f"{q} in {unit_text(u)}" for q, u in units) + ".", ""]
-    from .properties import KINDS
-
-    failed_cells = {(f.system, f.functional, q) for f in failures
-                    for q in (KINDS[f.property].quantities if f.property in KINDS else ())}
+    failed_cells = {(f.system, f.functional, q) for f in failures for q in quantities_of(f.property)}
     for q in ordered(r.quantity for r in rows):
         qrows = [r for r in rows if r.quantity == q]
         unit = qrows[0].unit
         funcs = functionals_of(qrows)
         systems = systems_of(qrows)
         by = {(r.system, r.functional): r for r in qrows}
-        out += [f"## {QUANTITY_TITLES.get(q, q)} ({unit_text(unit)})", ""]
+        out += [f"## {quantity(q).title} ({unit_text(unit)})", ""]
         head = ["system", "reference"] + funcs
         body = []
         for s in systems:
             ref = next((by[(s, f)].reference for f in funcs if (s, f) in by and by[(s, f)].reference is not None),
                        None)
-            row = [s, fmt(ref, unit)]
+            row = [s, fmt(ref, q)]
             for f in funcs:
                 r = by.get((s, f))
                 if r is None:
                     row.append("failed" if (s, f, q) in failed_cells else "—")
                 elif r.error is None:
-                    row.append(fmt(r.value, unit))
+                    row.append(fmt(r.value, q))
                 else:
-                    row.append(f"{fmt(r.value, unit)} ({fmt(r.error, unit, True)})")
+                    row.append(f"{fmt(r.value, q)} ({fmt(r.error, q, True)})")
             body.append(row)
         out += [_md_table(head, body), ""]
         if any(st.quantity == q and st.n for st in stats):

@@ -4,8 +4,8 @@ Runs, in one process on this machine:
 
 1. the cold report: examples/report_cu_site.xyz (Cu, C, O, N; bonded pairs with data: CO, N2), the
    default ladder (LDA, PBE, PBEsol, r2SCAN, PBE0, B3LYP — six functionals with the full battery — plus
-   HSE06 with Gaussian aug-cc-pVTZ atoms and the diatomics), planned basis def2-TZVP, a fresh store, a process pool of ``--workers``
-   (default 2); printed: wall time, jobs, and the ratio to the 120 s target;
+   HSE06 with Gaussian aug-cc-pVTZ atoms and the diatomics), planned basis def2-TZVP, a fresh store, a process
+   pool of ``--workers`` (default 2); printed: wall time, jobs, and the ratio to the 120 s target;
 2. the warm report: the same command on the same store (every job reused);
 3. the Gaussian part against pyscf on the same jobs: the diatomic scan points and atoms of two of the
    functionals (PBE, PBE0), each single point run by ks1d's ``solve_molecule`` and by pyscf's UKS/RKS

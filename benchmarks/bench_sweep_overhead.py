@@ -53,8 +53,8 @@ def main() -> int:
 
     import ks1d
     from ks1d.sweep import InlineExecutor, parse_spec, run_sweep
-    from ks1d.sweep.properties.calculations import clear_memo
     from ks1d.sweep.engine.worker import run_job
+    from ks1d.sweep.properties.calculations import clear_memo
     from ks1d.sweep.properties.registry import REGISTRY
 
     lib.num_threads(1)

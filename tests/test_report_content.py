@@ -48,7 +48,6 @@ def test_lithium_ip_and_homo_match_pyscf(small_report, xc, pyscf_xc, tol):
     # pyscf UKS(Li) and RKS(Li+) in a large even-tempered s basis (tests/pyscf_atoms.py: within 0.1 uHa of the
     # basis-set limit for closed shells); Li 2s1 is spherical, so both codes describe the same states
     from pyscf import dft, gto
-
     from pyscf_atoms import even_tempered
 
     basis = {"Li": [[0, [a, 1.0]] for a in even_tempered(0.01, 1e7, 1.6)]}
@@ -207,10 +206,10 @@ def test_a_stalled_density_residual_is_retried_and_flagged():
     # the survey's one retry accepts a 1e-5 density tolerance and records the step.  Reference: pyscf UKS(Li)
     # and RKS(Li+) with r2SCAN in the large even-tempered s basis (run now).
     from pyscf import dft, gto
+    from pyscf_atoms import even_tempered
 
     from ks1d.sweep.properties.registry import run_property
     from ks1d.sweep.properties.systems import System
-    from pyscf_atoms import even_tempered
 
     out = run_property("atom_survey", System(name="Li", kind="atom", symbol="Li"), "r2scan",
                        {"precision": "normal", "atom_options": {"estimate_error": False}})

@@ -9,9 +9,9 @@ import pytest
 
 from ks1d import units
 from ks1d.sweep import InlineExecutor, parse_spec, run_sweep
-from ks1d.sweep.properties.datasets import reference_for
 from ks1d.sweep.output.writers import build_report
 from ks1d.sweep.properties.curvefit import fit_curve, harmonic_wavenumber
+from ks1d.sweep.properties.datasets import reference_for
 from ks1d.sweep.properties.registry import run_property
 from ks1d.sweep.properties.systems import System, parse_atom
 
@@ -115,7 +115,8 @@ def test_a_sweep_report_compares_lda_total_energies_with_nist():
         property = "total_energy"
         systems = ["H", "He"]
     """))
-    import tempfile, os
+    import os
+    import tempfile
 
     with tempfile.TemporaryDirectory() as d:
         store = os.path.join(d, "s.sqlite")

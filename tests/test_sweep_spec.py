@@ -6,9 +6,9 @@ import textwrap
 import pytest
 
 from ks1d.errors import InputError
+from ks1d.occupations import ground_state_multiplicity
 from ks1d.sweep import SpecError, parse_spec
 from ks1d.sweep.properties.configurations import sd_configurations
-from ks1d.occupations import ground_state_multiplicity
 from ks1d.sweep.properties.systems import parse_atom
 
 

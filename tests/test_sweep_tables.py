@@ -16,11 +16,11 @@ import xml.etree.ElementTree as ET
 import numpy as np
 import pytest
 
-from ks1d.sweep.properties.datasets import reference_for
 from ks1d.sweep.output.collect import ResultRow
 from ks1d.sweep.output.statistics import error_statistics
-from ks1d.sweep.properties.systems import parse_atom
 from ks1d.sweep.output.tables import results_markdown, statistics_csv, values_csv, write_tables
+from ks1d.sweep.properties.datasets import reference_for
+from ks1d.sweep.properties.systems import parse_atom
 
 
 @pytest.fixture(scope="module")

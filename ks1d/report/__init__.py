@@ -5,9 +5,9 @@
 >>> out.paths["html"]                                                                    # doctest: +SKIP
 'ks1d-report.html'
 """
+from ..structure import Structure, StructureError, read_structure
 from .plan import DEFAULT_FUNCTIONALS, ReportPlan, plan_report
 from .run import ReportOutcome, functional_report
-from ..structure import Structure, StructureError, read_structure
 
 __all__ = ["DEFAULT_FUNCTIONALS", "ReportOutcome", "ReportPlan", "Structure", "StructureError",
            "functional_report", "plan_report", "read_structure"]

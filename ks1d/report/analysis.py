@@ -17,8 +17,9 @@ basis-set errors are shown beside the ranking but are not part of it.
 """
 from __future__ import annotations
 
+from collections.abc import Sequence
 from dataclasses import dataclass, field
-from typing import Any, Sequence
+from typing import Any
 
 from ..quantities import quantity
 from ..sweep.engine.store import JobRow

@@ -1,7 +1,7 @@
 """The report's content: which tables, figures and words, from the plan and the analysed results."""
 from __future__ import annotations
 
-from typing import Sequence
+from collections.abc import Sequence
 
 from ..quantities import fmt, quantity
 from ..sweep.output.collect import ResultRow
@@ -131,9 +131,9 @@ def _ranking_section(plan: ReportPlan, data: ReportData) -> Section:
                                                     "(count in parentheses); the score uses the common set only"))
     blocks.append(f"Metric: the mean absolute error, in eV, over the energy comparisons with experiment that every "
                   f"ranked functional completed ({parts or 'none'}). A comparison one ranked functional lacks is "
-                  f"dropped for all ({len(data.dropped)} dropped). Functionals with fewer than three quarters of the comparisons "
-                  "of the best-covered one are listed but not ranked. −ε_HOMO, spin polarization, r_e, ω_e and "
-                  "basis-set errors are not part of the score.")
+                  f"dropped for all ({len(data.dropped)} dropped). Functionals with fewer than three quarters of "
+                  "the comparisons of the best-covered one are listed but not ranked. −ε_HOMO, spin polarization, "
+                  "r_e, ω_e and basis-set errors are not part of the score.")
     blocks.append("Caveats:")
     caveats = CAVEATS if not plan.symmetry_broken else tuple(
         c if not c.startswith("Spherical versus symmetry-broken") else

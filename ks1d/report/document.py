@@ -14,7 +14,6 @@ import html
 import os
 import re
 from dataclasses import dataclass, field
-from typing import Union
 
 
 @dataclass(frozen=True)
@@ -30,7 +29,7 @@ class Cell:
 @dataclass(frozen=True)
 class Table:
     header: tuple[str, ...]
-    rows: tuple[tuple[Union[Cell, str], ...], ...]
+    rows: tuple[tuple[Cell | str, ...], ...]
     caption: str = ""
     row_ids: tuple[str | None, ...] = ()
 
@@ -47,7 +46,7 @@ class Bullets:
     items: tuple[str, ...]
 
 
-Block = Union[str, Table, Figure, Bullets]
+Block = str | Table | Figure | Bullets
 
 
 @dataclass(frozen=True)
@@ -103,7 +102,7 @@ def _e(text: str) -> str:
     return html.escape(text, quote=True)
 
 
-def _cell_html(c: Union[Cell, str], tag: str = "td") -> str:
+def _cell_html(c: Cell | str, tag: str = "td") -> str:
     if not isinstance(c, Cell):
         c = Cell(str(c))
     inner = _e(c.text)
@@ -167,11 +166,11 @@ def _md_text(text: str) -> str:
     return text.replace("|", "\\|").replace("\n", " ")
 
 
-def _plain(c: Union[Cell, str]) -> str:
+def _plain(c: Cell | str) -> str:
     return c.text if isinstance(c, Cell) else str(c)
 
 
-def _md_cell(c: Union[Cell, str]) -> str:
+def _md_cell(c: Cell | str) -> str:
     if not isinstance(c, Cell):
         return _md_text(str(c))
     text = _md_text(c.text)

@@ -9,7 +9,7 @@
 from __future__ import annotations
 
 import io
-from typing import Sequence
+from collections.abc import Sequence
 
 from ..quantities import unit_text
 from ..sweep.output.collect import ResultRow, functionals_of, systems_of

@@ -21,8 +21,8 @@ and are shown beside the ranking rather than in it.
 """
 from __future__ import annotations
 
+from collections.abc import Sequence
 from dataclasses import dataclass
-from typing import Sequence
 
 from ..errors import InputError
 from ..structure import Structure, read_structure

@@ -6,8 +6,9 @@ import hashlib
 import json
 import os
 import time
+from collections.abc import Sequence
 from dataclasses import dataclass
-from typing import Any, Sequence, TextIO
+from typing import Any, TextIO
 
 from .._version import __version__
 from ..errors import InputError

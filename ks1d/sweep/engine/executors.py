@@ -10,8 +10,9 @@ outputs do not depend on the executor.
 from __future__ import annotations
 
 import os
+from collections.abc import Callable, Sequence
 from contextlib import contextmanager
-from typing import Any, Callable, Sequence
+from typing import Any
 
 from ...errors import InputError
 from .jobs import Job

@@ -14,8 +14,9 @@ from __future__ import annotations
 
 import hashlib
 import json
+from collections.abc import Callable
 from dataclasses import dataclass, field
-from typing import Any, Callable
+from typing import Any
 
 from ..._version import __version__
 
@@ -62,7 +63,7 @@ class Job:
         }
 
     @classmethod
-    def from_dict(cls, d: dict[str, Any], system_from_dict: Callable[[dict[str, Any]], Any]) -> "Job":
+    def from_dict(cls, d: dict[str, Any], system_from_dict: Callable[[dict[str, Any]], Any]) -> Job:
         """The job of :meth:`to_dict`; ``system_from_dict`` rebuilds its system (the registry's decoder)."""
         return cls(
             system=system_from_dict(d["system"]),

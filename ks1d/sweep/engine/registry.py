@@ -18,7 +18,7 @@ import-linter contract checks this).  ks1d's own registry is
 from __future__ import annotations
 
 import importlib
-from functools import lru_cache
+from functools import cache
 from typing import Any, Protocol, runtime_checkable
 
 from ...errors import InputError
@@ -37,7 +37,7 @@ class Registry(Protocol):
     def cost(self, job) -> float: ...
 
 
-@lru_cache(maxsize=None)
+@cache
 def load_registry(ref: str) -> Registry:
     """The registry named ``"package.module:attribute"`` (imported once per process)."""
     module, sep, attribute = str(ref).partition(":")

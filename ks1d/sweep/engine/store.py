@@ -21,8 +21,9 @@ import os
 import socket
 import sqlite3
 import time
+from collections.abc import Iterable, Iterator
 from dataclasses import dataclass
-from typing import Any, Iterable, Iterator
+from typing import Any
 
 from ..._version import __version__
 from ...errors import InputError
@@ -130,7 +131,7 @@ class Store:
     def close(self) -> None:
         self._db.close()
 
-    def __enter__(self) -> "Store":
+    def __enter__(self) -> Store:
         return self
 
     def __exit__(self, *exc) -> None:
@@ -215,7 +216,7 @@ class Store:
         def __exit__(self, et, ev, tb):
             self.db.execute("ROLLBACK" if et else "COMMIT")
 
-    def _transaction(self) -> "Store._Tx":
+    def _transaction(self) -> Store._Tx:
         return Store._Tx(self._db)
 
     # -------------------------------------------------------------- reading

@@ -11,7 +11,7 @@ Quantities without references get only a per-system bar chart of the values.
 from __future__ import annotations
 
 import os
-from typing import Sequence
+from collections.abc import Sequence
 
 from ...errors import InputError
 from ...quantities import quantity, unit_text

@@ -13,8 +13,9 @@ The worst systems (largest |e_i|, up to three) are named as well.
 from __future__ import annotations
 
 import math
+from collections.abc import Sequence
 from dataclasses import dataclass
-from typing import Any, Sequence
+from typing import Any
 
 from .collect import ResultRow, functionals_of, ordered
 

@@ -14,7 +14,8 @@ import csv
 import io
 import json
 import os
-from typing import Any, Sequence
+from collections.abc import Sequence
+from typing import Any
 
 from ..._version import __version__
 from ...quantities import fmt, quantity, unit_text

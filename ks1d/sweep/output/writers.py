@@ -1,8 +1,9 @@
 """Turn a store into tables and plots (what ``ks1d sweep report`` does)."""
 from __future__ import annotations
 
+from collections.abc import Sequence
 from dataclasses import dataclass
-from typing import Any, Sequence
+from typing import Any
 
 from ..engine.store import Store
 from .collect import FailureRow, ResultRow, collect

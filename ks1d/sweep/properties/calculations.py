@@ -15,7 +15,7 @@ from typing import Any
 
 from ..engine.jobs import canonical_json
 
-_MEMO: "OrderedDict[str, dict[str, Any]]" = OrderedDict()
+_MEMO: OrderedDict[str, dict[str, Any]] = OrderedDict()
 _MEMO_SIZE = 256
 
 

@@ -17,7 +17,7 @@ Which solvers a job calls, and in which basis, comes from its kind's
 """
 from __future__ import annotations
 
-from typing import Iterable, Sequence
+from collections.abc import Iterable, Sequence
 
 from ...errors import BasisError, InputError, UnsupportedFunctional
 from ...gaussian.basis import check_basis

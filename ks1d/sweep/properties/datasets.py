@@ -210,7 +210,6 @@ def diatomic(formula: str) -> System:
     lowest the electron count allows.  (For the 15 diatomics of ks1d's data the
     three agree wherever more than one applies.)
     """
-    from ... import elements
 
     ref = _from_loader("diatomic_bond_length", formula, "bond_length")
     if ref is None:

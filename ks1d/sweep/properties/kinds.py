@@ -26,8 +26,9 @@ jobs first and to weigh the progress ETA; it never changes a number.
 from __future__ import annotations
 
 import difflib
+from collections.abc import Callable
 from dataclasses import dataclass
-from typing import Any, Callable, NamedTuple
+from typing import Any, NamedTuple
 
 from ...errors import InputError
 from ...quantities import QUANTITIES

@@ -18,8 +18,9 @@ The rows are computed as sweep ``total_energy`` jobs, so they run on the same ex
 """
 from __future__ import annotations
 
+from collections.abc import Sequence
 from dataclasses import dataclass
-from typing import Any, Sequence, TextIO
+from typing import Any, TextIO
 
 from ... import elements
 from ..._version import __version__

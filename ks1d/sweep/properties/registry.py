@@ -17,7 +17,8 @@ basis_set_error        :func:`.atom_survey.basis_set_error`
 """
 from __future__ import annotations
 
-from typing import Any, Callable
+from collections.abc import Callable
+from typing import Any
 
 from . import atom_survey, basic, diatomic
 from .context import Context

@@ -18,8 +18,9 @@ Multiplicities (:meth:`System.multiplicity_at`), one rule per kind of system:
 from __future__ import annotations
 
 import re
+from collections.abc import Sequence
 from dataclasses import dataclass, field
-from typing import Any, Sequence
+from typing import Any
 
 from ... import elements
 from ...errors import ConfigurationError, GeometryError, InputError
@@ -123,7 +124,7 @@ class System:
         }
 
     @classmethod
-    def from_dict(cls, d: dict[str, Any]) -> "System":
+    def from_dict(cls, d: dict[str, Any]) -> System:
         d = dict(d)
         d["pair"] = tuple(d.get("pair") or ())
         return cls(**d)

@@ -146,6 +146,21 @@ def test_markdown_twin_has_the_same_tables(small_report):
         assert open(png, "rb").read(8) == b"\x89PNG\r\n\x1a\n"
 
 
+def test_markdown_twin_links_every_number_to_its_stored_job(small_report):
+    # the Markdown twin keeps the page's promise: each value cell links to its job's row of the provenance table
+    page = open(small_report.paths["html"], encoding="utf-8").read()
+    md = open(small_report.paths["markdown"], encoding="utf-8").read()
+    html_links = set(re.findall(r'href="#job-([0-9a-f]{12})"', page))
+    md_links = set(re.findall(r"\]\(#job-([0-9a-f]{12})\)", md))
+    md_anchors = set(re.findall(r'<a id="job-([0-9a-f]{12})"></a>', md))
+    assert md_links and md_links == html_links
+    assert md_links <= md_anchors
+    stored = {k[:12] for (k,) in sqlite3.connect(small_report.store).execute("SELECT key FROM jobs")}
+    assert md_anchors <= stored
+    li = _row(small_report, "ionisation_potential", "Li", "pbe")
+    assert f"[{li.value:.3f} ({li.error:+.3f})](#job-{li.job[:12]})" in md
+
+
 def test_json_twin_holds_the_same_values(small_report):
     import json
 

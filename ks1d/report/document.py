@@ -5,7 +5,9 @@ bullet lists, tables and figures) and rendered twice, so the HTML page and
 its Markdown twin always say the same thing.  The HTML embeds its figures as
 base64 PNG data URIs and its style sheet inline: it needs no network and no
 files beside it, and has no scripts.  The Markdown refers to PNG files
-written next to it.
+written next to it.  In both, a cell with a ``link`` links to the anchor of
+that id (in Markdown ``[text](#id)``), and a table row with an id carries the
+anchor (in Markdown an ``<a id="…"></a>`` at the start of its first cell).
 """
 from __future__ import annotations
 
@@ -166,6 +168,14 @@ def _md_text(text: str) -> str:
     return text.replace("|", "\\|").replace("\n", " ")
 
 
+def _md_link_text(text: str) -> str:
+    return text.replace("[", "\\[").replace("]", "\\]")
+
+
+def _md_anchor(anchor: str | None) -> str:
+    return f'<a id="{html.escape(anchor, quote=True)}"></a>' if anchor else ""
+
+
 def _plain(c: Cell | str) -> str:
     return c.text if isinstance(c, Cell) else str(c)
 
@@ -174,6 +184,8 @@ def _md_cell(c: Cell | str) -> str:
     if not isinstance(c, Cell):
         return _md_text(str(c))
     text = _md_text(c.text)
+    if c.link:
+        text = f"[{_md_link_text(text)}](#{c.link})"
     if c.mark == "best":
         text = f"**{text}**"
     if c.mark == "flag":
@@ -199,8 +211,11 @@ def to_markdown(doc: Document, figure_dir: str | None) -> str:
                 numeric = [bool(b.rows) and all(_NUMERIC.match(_plain(r[i])) for r in b.rows if i < len(r))
                            for i in range(len(b.header))]
                 out.append("|" + "|".join("---:" if n else ":---" for n in numeric) + "|")
-                for row in b.rows:
-                    out.append("| " + " | ".join(_md_cell(c) for c in row) + " |")
+                for i, row in enumerate(b.rows):
+                    cells = [_md_cell(c) for c in row]
+                    if cells:
+                        cells[0] = _md_anchor(b.row_ids[i] if i < len(b.row_ids) else None) + cells[0]
+                    out.append("| " + " | ".join(cells) + " |")
                 if b.caption:
                     out += ["", f"*{b.caption}*"]
                 out.append("")

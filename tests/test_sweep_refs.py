@@ -33,6 +33,7 @@ def test_json_rows_match_the_nist_lsd_table(capsys):
     assert energies["He"] == pytest.approx(-2.834836, abs=2e-6)
     h = rows[0]
     assert h["multiplicity"] == 2 and h["spin"] == "polarized" and h["libxc"] == "lda_x,lda_c_vwn"
+    assert h["model"].startswith("basis-set limit: radial solver, spherical")
     assert h["error_estimate"] is not None and h["error_estimate"] < 1e-5
     assert h["ks1d_version"] and h["settings"]["precision"] == "low"
 
@@ -51,6 +52,8 @@ def test_csv_rows_in_a_gaussian_basis_match_pyscf(capsys):
     mf.conv_tol = 1e-10
     assert float(row["total_energy"]) == pytest.approx(mf.kernel(), abs=2e-5)
     assert row["multiplicity"] == "4" and row["solver"] == "gaussian def2-svp"
+    assert row["model"].startswith("Gaussian basis def2-svp: atom at the Hund's-rule multiplicity with integer "
+                                   "occupations")
     assert json.loads(row["settings"]) == {"atoms": "basis", "basis": "def2-svp"}
 
 
@@ -65,3 +68,55 @@ def test_functional_lists_keep_libxc_component_lists_together():
     assert refs_command.split_functionals("gga_x_pbe,gga_c_pbe,lda") == ["gga_x_pbe,gga_c_pbe", "lda"]
     with pytest.raises(InputError, match="did you mean 'pbe'"):
         refs_command.split_functionals("pbee")
+
+
+def _cli(argv, capsys):
+    from ks1d.cli import main
+
+    try:
+        code = main(argv)
+    except SystemExit as exc:
+        code = exc.code
+    out, err = capsys.readouterr()
+    return code, out, err
+
+
+def test_the_table_says_which_model_its_energies_are(capsys):
+    # the radial limit and a Gaussian basis are different models and never share a heading; H in STO-3G lies
+    # 12 mHa above the H LSD limit -0.478671 Ha (NIST SRD 141, from memory), so it is not a limit value
+    code, out, err = _cli(["refs", "H", "--xc", "lda", "--precision", "low", "--quiet"], capsys)
+    assert code == 0 and err == ""
+    assert out.splitlines()[0].startswith("Reference atomic energies at the basis-set limit")
+    assert "spherical spin-polarized atom" in out.splitlines()[1]
+    code, out, err = _cli(["refs", "H", "--xc", "lda", "--basis", "sto-3g"], capsys)
+    assert code == 0
+    head = out.splitlines()
+    assert head[0].startswith("Atomic energies in a Gaussian basis, not at the basis-set limit")
+    assert "integer occupations" in head[1] and "below the spherical basis-set limit" in head[1]
+    assert "basis-set limit" not in head[0].replace("not at the basis-set limit", "")
+    assert "refs" in err and "1/1" in err  # the progress line, on stderr
+    energy = float(next(ln for ln in head if ln.startswith("H ")).split()[4])
+    assert energy > -0.478671 + 0.005
+
+
+BAD_REFS = [
+    (["refs", "C", "O", "--xc", "pbe", "--basis", "def2-tzvpp-nonsense"], "unknown basis 'def2-tzvpp-nonsense'"),
+    (["refs", "Rb", "--xc", "pbe", "--basis", "def2-tzvp"], "effective core potential"),
+    (["refs", "O", "--xc", "hse06"], "give --basis NAME"),
+    (["refs", "O", "--xc", "pbe", "--basis", " "], "--basis needs a basis name"),
+    (["refs", "Xx", "--xc", "pbe"], "'Xx'"),
+    (["refs", "O", "--xc", "pbee"], "did you mean 'pbe'"),
+    (["refs", "O", "--xc", "pbe", "--workers", "-1"], "--workers must be 0 or more"),
+]
+
+
+@pytest.mark.parametrize("argv, fragment", BAD_REFS, ids=[" ".join(a[1:]) for a, _ in BAD_REFS])
+def test_bad_refs_requests_exit_2_before_any_atom_runs(argv, fragment, capsys, tmp_path, monkeypatch):
+    monkeypatch.chdir(tmp_path)
+    code, out, err = _cli(argv, capsys)
+    lines = [ln for ln in err.splitlines() if ln.strip()]
+    assert code == 2, err
+    assert len(lines) == 1 and lines[0].startswith("ks1d: error:"), err
+    assert fragment in lines[0], lines[0]
+    assert "Traceback" not in err and out == ""
+    assert list(tmp_path.iterdir()) == []

@@ -47,6 +47,29 @@ def test_jobs_are_the_product_of_functionals_systems_and_properties():
     ("[[study]\n", "not valid TOML"),
     ('[[study]]\nproperty = "spin_splitting"\nsystems = [{ atom = "C", multiplicities = [3, 2] }]',
      "multiplicity 2 is impossible for 6 electrons"),
+    # checked up front exactly like `ks1d report` (ks1d.sweep.properties.checks)
+    ('[[study]]\nproperty = "total_energy"\nsystems = ["g2-1:H2O"]\nbasis = "def2-nonsense"',
+     "unknown basis 'def2-nonsense'"),
+    ('[[study]]\nproperty = "total_energy"\nsystems = ["Rb"]\natoms = "basis"\nbasis = "def2-tzvp"',
+     "effective core potential"),
+    ('[[study]]\nproperty = "ionisation_potential"\nsystems = ["O"]\nfunctionals = ["hse06"]',
+     "the radial solver has no range-separated exact exchange"),
+    ('[[study]]\nproperty = "atomization_energy"\nsystems = ["g2-1:H2O"]\natoms = "radial"\nfunctionals = ["hse06"]',
+     'set atoms = "basis"'),
+    ('[[study]]\nproperty = "sd_promotion"\nsystems = ["Fe"]\natoms = "basis"', "needs radial atoms"),
+    # the SCF options' earlier names name their new ones
+    ('[[study]]\nproperty = "total_energy"\nsystems = ["Li"]\natom_options = { mixing = 0.3 }',
+     "'mixing' in atom_options is the old name of 'damping'"),
+    ('[[study]]\nproperty = "total_energy"\nsystems = ["Li"]\natom_options = { density_tol = 1e-6 }',
+     "old name of 'residual_tolerance'"),
+    ('[[study]]\nproperty = "total_energy"\nsystems = ["Li"]\natom_options = { energy_tol = 1e-9 }',
+     "old name of 'energy_tolerance'"),
+    ('[[study]]\nproperty = "total_energy"\nsystems = ["g2-1:H2O"]\nmolecule_options = { gradient_tolerance = 1e-6 }',
+     "old name of 'residual_tolerance'"),
+    ('[[study]]\nproperty = "total_energy"\nsystems = ["g2-1:H2O"]\nmolecule_options = { diis_size = 6 }',
+     "old name of 'history'"),
+    ('[[study]]\nproperty = "total_energy"\nsystems = [{ atom = "C", multiplicity = 1 }]',
+     "an atom takes no 'multiplicity'"),
 ])
 def test_bad_specs_are_refused_with_a_specific_message(body, message):
     with pytest.raises(SpecError, match=message):
@@ -56,6 +79,20 @@ def test_bad_specs_are_refused_with_a_specific_message(body, message):
 def test_an_unknown_functional_is_refused_before_anything_runs():
     with pytest.raises(SpecError, match="did you mean 'pbe'"):
         _spec('[[study]]\nproperty = "total_energy"\nsystems = ["H"]', top='functionals = ["pbee"]')
+
+
+def test_range_separated_hybrids_are_accepted_where_a_gaussian_solver_runs():
+    # HSE06 is refused on radial atoms (above) but runs on molecules and on Gaussian-basis atoms
+    spec = _spec("""
+        [[study]]
+        properties = ["total_energy", "ionisation_potential"]
+        systems = ["O", "g2-1:H2O"]
+        atoms = "basis"
+        [[study]]
+        property = "bond_length"
+        systems = ["diatomics:N2"]
+    """, top='functionals = ["hse06"]')
+    assert len(spec.jobs()) == 5
 
 
 def test_user_xyz_files_are_read_relative_to_the_spec(tmp_path):
@@ -103,3 +140,46 @@ def test_sd_configurations_of_3d_atoms():
     assert sd_configurations("Fe") == ("[Ar] 3d6 4s2", "[Ar] 3d7 4s1")
     assert sd_configurations("Cr") == ("[Ar] 3d4 4s2", "[Ar] 3d5 4s1")
     assert sd_configurations("Cu") == ("[Ar] 3d9 4s2", "[Ar] 3d10 4s1")
+
+
+def _cli(argv, capsys):
+    from ks1d.cli import main
+
+    try:
+        code = main(argv)
+    except SystemExit as exc:
+        code = exc.code
+    out, err = capsys.readouterr()
+    return code, out, err
+
+
+LATIN1_SPEC = ('name = "Lösung für Ångström"\nfunctionals = ["lda"]\n'
+               '[[study]]\nproperty = "total_energy"\nsystems = ["H"]\n')
+
+BAD_SPECS = [
+    # (spec file bytes, fragment of the one error line)
+    (LATIN1_SPEC.encode("latin-1"), "is not UTF-8 (it looks like Latin-1/Windows-1252 text): byte 0xf6 on line 1"),
+    (b'functionals = ["lda"]\n[[study]]\nproperty = "total_energy"\nsystems = ["g2-1:H2O"]\nbasis = "def2-svpp"\n',
+     "unknown basis 'def2-svpp'"),
+    (b'functionals = ["hse06"]\n[[study]]\nproperty = "atom_survey"\nsystems = ["O"]\n',
+     "the radial solver has no range-separated exact exchange"),
+    (b'functionals = ["lda"]\n[[study]]\nproperty = "total_energy"\nsystems = ["Li"]\n'
+     b'atom_options = { mixing = 0.3 }\n', "old name of 'damping'"),
+]
+
+
+@pytest.mark.parametrize("action", ["plan", "run"])
+@pytest.mark.parametrize("spec_bytes, fragment", BAD_SPECS, ids=["latin-1", "basis", "hse06-radial", "old-option"])
+def test_bad_specs_exit_2_with_one_line_and_write_nothing(action, spec_bytes, fragment, tmp_path, capsys,
+                                                          monkeypatch):
+    monkeypatch.chdir(tmp_path)
+    (tmp_path / "s.toml").write_bytes(spec_bytes)
+    before = set(tmp_path.iterdir())
+    argv = ["sweep", action, "s.toml"] + (["--store", "s.sqlite", "--workers", "0"] if action == "run" else [])
+    code, out, err = _cli(argv, capsys)
+    lines = [ln for ln in err.splitlines() if ln.strip()]
+    assert code == 2, err
+    assert len(lines) == 1 and lines[0].startswith("ks1d: error:"), err
+    assert fragment in lines[0], lines[0]
+    assert "Traceback" not in err and out == ""
+    assert set(tmp_path.iterdir()) == before  # no store, nothing else

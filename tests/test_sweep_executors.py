@@ -66,3 +66,19 @@ def test_progress_line_counts_and_eta():
     bar.advance(failed=True)
     text = buf.getvalue()
     assert "demo" in text and "2/2" in text and "100%" in text and "1 failed" in text
+
+
+def test_workers_find_the_registry_by_name_and_a_registry_that_cannot_be_found_is_refused():
+    from ks1d.errors import InputError
+    from ks1d.sweep.engine.registry import load_registry, registry_ref
+    from ks1d.sweep.properties.registry import REGISTRY, PropertyRegistry
+
+    assert load_registry(REGISTRY.ref) is REGISTRY  # what every worker process does with the name
+    assert registry_ref(REGISTRY) == "ks1d.sweep.properties.registry:REGISTRY"
+    with pytest.raises(InputError, match="cannot find the job registry"):
+        load_registry("ks1d.sweep.properties.registry:NO_SUCH_REGISTRY")
+    with pytest.raises(InputError, match="package.module:attribute"):
+        load_registry("no-colon")
+    # a second registry object under the first one's name would run other code in the workers than here
+    with pytest.raises(InputError, match="does not lead back to this registry"):
+        registry_ref(PropertyRegistry())

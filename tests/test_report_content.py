@@ -318,3 +318,27 @@ def test_gaussian_atom_functionals_are_listed_beside_the_ranking(tmp_path):
     assert by["lda"].rank == 1
     assert by["hse06"].rank is None and "Gaussian" in by["hse06"].note
     assert "ionisation_potential" in by["hse06"].mae  # its own MAE is still shown
+
+
+_SCORE_SCRIPT = """
+import sys
+from ks1d.report.analysis import rank_functionals
+from ks1d.sweep.output.collect import ResultRow
+errs = [((i * 7919) % 1000) / 997.0 - 0.4 for i in range(40)]   # constructed errors (not physics)
+rows = [ResultRow(system=f"X{i}", quantity="ionisation_potential", functional="A", value=e, unit="eV", reference=0.0,
+                  error=e, reference_source="test", reference_from_memory=False, job="0" * 64)
+        for i, e in enumerate(errs)]
+print(repr(rank_functionals(rows, ["A"])[0][0].score))
+"""
+
+
+def test_the_ranking_score_does_not_depend_on_the_string_hash_seed():
+    # the common set was a Python set, so the score's float sum ran in a hash-seed-dependent order and its
+    # last digits changed from run to run; it is summed in sorted order now
+    import os
+    import subprocess
+    import sys
+
+    scores = {subprocess.run([sys.executable, "-c", _SCORE_SCRIPT], capture_output=True, text=True, check=True,
+                             env=dict(os.environ, PYTHONHASHSEED=str(seed))).stdout.strip() for seed in range(6)}
+    assert len(scores) == 1, scores

@@ -109,7 +109,9 @@ def rank_functionals(rows: Sequence[ResultRow], functionals: Sequence[str], unra
             comp[r.functional][(r.quantity, r.system)] = r.error
     best = max((len(c) for f, c in comp.items() if f not in unranked), default=0)
     ranked = [f for f in functionals if f not in unranked and best and len(comp[f]) >= 0.75 * best]
-    common: set[tuple[str, str]] = set.intersection(*(set(comp[f]) for f in ranked)) if ranked else set()
+    key = lambda t: (RANKED.index(t[0]), t[1])  # noqa: E731
+    # sorted, so that the score's sum runs in one order whatever the process's string-hash seed
+    common = sorted(set.intersection(*(set(comp[f]) for f in ranked)) if ranked else set(), key=key)
     every = set().union(*comp.values()) if comp else set()
     entries = []
     for f in functionals:
@@ -129,8 +131,7 @@ def rank_functionals(rows: Sequence[ResultRow], functionals: Sequence[str], unra
     ranks = {e.functional: i + 1 for i, e in enumerate(order)}
     entries = [RankEntry(e.functional, e.score, e.n, e.mae, ranks.get(e.functional), e.note) for e in entries]
     entries.sort(key=lambda e: (e.rank is None, e.rank or 0))
-    key = lambda t: (RANKED.index(t[0]), t[1])  # noqa: E731
-    return tuple(entries), tuple(sorted(common, key=key)), tuple(sorted(every - common, key=key))
+    return tuple(entries), tuple(common), tuple(sorted(every - set(common), key=key))
 
 
 def _flags(jr: JobRow) -> list[Flag]:

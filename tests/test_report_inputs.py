@@ -121,9 +121,50 @@ def _cli(*args, cwd):
 def test_cli_exits_2_before_computing(tmp_path, args, fragment):
     r = _cli(*args, cwd=tmp_path)
     assert r.returncode == 2, r.stderr
-    assert fragment in r.stderr
-    assert "Traceback" not in r.stderr
+    lines = [ln for ln in r.stderr.splitlines() if ln.strip()]
+    assert len(lines) == 1 and lines[0].startswith("ks1d: error:"), r.stderr
+    assert fragment in lines[0]
+    assert "Traceback" not in r.stderr and r.stdout == ""
     assert not os.listdir(tmp_path)  # no store, no page: nothing was started
+
+
+# rock salt, a = 5.64 A (handbook lattice constant, from memory), in the CIF format ASE reads
+NACL_CIF = """data_NaCl
+_cell_length_a 5.64
+_cell_length_b 5.64
+_cell_length_c 5.64
+_cell_angle_alpha 90
+_cell_angle_beta 90
+_cell_angle_gamma 90
+_symmetry_space_group_name_H-M 'P 1'
+loop_
+_atom_site_label
+_atom_site_type_symbol
+_atom_site_fract_x
+_atom_site_fract_y
+_atom_site_fract_z
+Na1 Na 0.0 0.0 0.0
+Cl1 Cl 0.5 0.0 0.0
+"""
+# water at its experimental geometry (as WATER above) in PDB HETATM records
+WATER_PDB = """HETATM    1  O   HOH A   1       0.000   0.000   0.117  1.00  0.00           O
+HETATM    2  H1  HOH A   1       0.000   0.757  -0.469  1.00  0.00           H
+HETATM    3  H2  HOH A   1       0.000  -0.757  -0.469  1.00  0.00           H
+END
+"""
+
+
+def test_cif_and_pdb_structures_are_planned_like_xyz(tmp_path):
+    # CIF: Na-Cl at a/2 = 2.82 A is bonded (< 1.2 (1.66 + 1.02) = 3.22 A, Cordero radii); ks1d has no NaCl
+    # diatomic data, so the pair is reported and nothing is computed for it
+    (tmp_path / "nacl.cif").write_text(NACL_CIF)
+    plan = plan_report(structure=str(tmp_path / "nacl.cif"), functionals=["lda"])
+    assert set(plan.elements) == {"Na", "Cl"} and plan.diatomics == ()
+    assert plan.pairs_without_data == ("Na–Cl",)
+    # PDB: the same bonds as the XYZ water (O-H only), so the same diatomic, OH
+    (tmp_path / "water.pdb").write_text(WATER_PDB)
+    plan = plan_report(structure=str(tmp_path / "water.pdb"), functionals=["lda"])
+    assert plan.elements == ("O", "H") and plan.diatomics == ("OH",)
 
 
 def test_symmetry_broken_basis_is_checked_and_keyed():

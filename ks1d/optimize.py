@@ -160,8 +160,7 @@ def optimize_molecule(geometry, basis="def2-svp", xc="pbe", charge: int = 0, mul
     """
     from geometric.engine import Engine
     from geometric.errors import GeomOptNotConvergedError
-    from geometric.internal import (CartesianCoordinates, DelocalizedInternalCoordinates,
-                                    PrimitiveInternalCoordinates)
+    from geometric.internal import CartesianCoordinates, DelocalizedInternalCoordinates, PrimitiveInternalCoordinates
     from geometric.molecule import Molecule
     from geometric.optimize import Optimize
     from geometric.params import OptParams

@@ -91,6 +91,8 @@ class MoleculeResult(_ToDict):
     gradient: np.ndarray | None = None
     # converged SCF state (densities, orbitals) for restarts and gradients; not serialised
     state: ConvergedState | None = field(default=None, repr=False, compare=False, metadata={"json": False})
+    # the parts of the gradient (ks1d.gaussian.gradient.GradientTerms); not serialised
+    gradient_terms: object = field(default=None, repr=False, compare=False, metadata={"json": False})
 
     @property
     def forces(self) -> np.ndarray | None:

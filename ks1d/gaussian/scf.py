@@ -626,4 +626,5 @@ def _attach_state_and_gradient(res: MoleculeResult, p: _Problem, orb: _Orbitals,
     settings = dict(res.settings, gradient={"translation_defect": terms.translation_defect,
                                             "grid_response": True,
                                             "grid_response_size": float(np.abs(terms.grid_response).max())})
-    return replace(res, gradient=grad, state=state, warnings=tuple(warnings), timings=timings, settings=settings)
+    return replace(res, gradient=grad, state=state, gradient_terms=terms, warnings=tuple(warnings), timings=timings,
+                   settings=settings)

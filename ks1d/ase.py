@@ -55,8 +55,9 @@ class KS1D(Calculator):
             raise SettingsError(f"unknown KS1D parameter(s) {', '.join(map(repr, unknown))}; the parameters are "
                                 f"{', '.join(self.default_parameters)}")
         changed = super().set(**kwargs)
-        if changed:
-            self.last_result = None  # another basis, functional or electron count: no restart
+        if changed:  # another basis, functional or electron count: new results, no restart
+            self.reset()
+            self.last_result = None
         return changed
 
     def calculate(self, atoms=None, properties=("energy",), system_changes=all_changes):

@@ -78,7 +78,10 @@ class HarmonicResult:
     wavenumbers: cm⁻¹, ascending, one per vibrational mode (3N − 6, or 3N − 5 for linear
     molecules); imaginary modes are negative numbers.
     normal_modes: (nmodes, natoms, 3) Cartesian displacement vectors, each normalised to 1.
-    reduced_masses: u, per mode.  zero_point_energy: hartree (½ Σ ħω over real modes).
+    reduced_masses: u, per mode, μ = 1/Σ_i L_i²/m_i for the unit mass-weighted mode L (common
+    practice in quantum-chemistry output; for a heteronuclear diatomic this is
+    m₁m₂(m₁+m₂)/(m₁²+m₂²), not the two-body reduced mass).
+    zero_point_energy: hartree (½ Σ ħω over real modes).
     hessian: (3N, 3N) Cartesian Hessian, Ha/bohr².  masses: u.  step: the finite-difference
     step, bohr.  reference: the :class:`~ks1d.gaussian.result.MoleculeResult` at the structure.
     """

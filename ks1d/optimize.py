@@ -151,7 +151,8 @@ def optimize_molecule(geometry, basis="def2-svp", xc="pbe", charge: int = 0, mul
     :func:`ks1d.gaussian.scf.solve_molecule` (extra keywords go there too).
     criteria: overrides of :data:`DEFAULT_CRITERIA` (``max_force``, ``rms_force`` in Ha/bohr;
     ``max_step``, ``rms_step`` in bohr; ``energy_change`` in Ha).
-    max_steps: gradient evaluations before giving up; coordinates: geomeTRIC's coordinate
+    max_steps: optimisation steps (geometry updates) before giving up; the gradient is evaluated
+    at most ``max_steps + 1`` times (the start and one per step); coordinates: geomeTRIC's coordinate
     system ("tric" translation–rotation internal coordinates, "dlc", "prim" or "cart");
     trust_radius: initial trust radius (bohr).
     progress(step): called with each :class:`OptimizationStep`.
@@ -230,7 +231,7 @@ def optimize_molecule(geometry, basis="def2-svp", xc="pbe", charge: int = 0, mul
                                                        f"E = {res.total_energy:.10f} Ha")
     if not converged:
         raise OptimizationError(
-            f"geometry optimisation did not meet the criteria in {max_steps} gradient evaluations "
+            f"geometry optimisation did not meet the criteria in {max_steps} steps "
             f"(max force {history[-1].max_force:.2e} Ha/bohr, criterion {crit['max_force']:.1e}); "
             "raise max_steps (--max-steps), start from a better structure, or try coordinates='cart'",
             history, final_xyz)

@@ -39,7 +39,8 @@ def register(sub) -> None:
                    help="with --optimize: write the optimised geometry (or the last one, if it fails) to OUT")
     g.add_argument("--max-force", type=float, default=None, metavar="HA_PER_BOHR",
                    help="with --optimize: convergence threshold on the largest force (default 4.5e-4)")
-    g.add_argument("--max-steps", type=int, default=100, help="with --optimize: optimisation steps before giving up (default 100)")
+    g.add_argument("--max-steps", type=int, default=100,
+                   help="with --optimize: optimisation steps before giving up (default 100)")
     g.add_argument("--frequencies", action="store_true",
                    help="harmonic frequencies from central differences of analytic gradients "
                         "(after the optimisation when given with --optimize)")

@@ -482,6 +482,8 @@ def solve_molecule(geometry, basis="def2-svp", xc="pbe", charge: int = 0, multip
     if gradient:
         scf = _gradient_scf_options(scf)
     p = _set_up(geometry, basis, xc, charge, multiplicity, spin, grid, scf)
+    if gradient:
+        _check_gradient_support(p)
     t_setup = time.perf_counter()
     one = _one_electron(p)
     mgrid = build_grid(p.geom, p.lvl)
@@ -572,6 +574,17 @@ def _gradient_scf_options(scf) -> SCFOptions:
     return replace(opts,
                    residual_tolerance=opts.residual_tolerance or GRADIENT_RESIDUAL_TOLERANCE,
                    energy_tolerance=opts.energy_tolerance or GRADIENT_ENERGY_TOLERANCE)
+
+
+def _check_gradient_support(p: _Problem) -> None:
+    """Refuse, before the SCF, Hamiltonians whose derivative integrals the gradient lacks."""
+    if p.bset.mol.has_ecp():
+        raise SettingsError("analytic gradients with effective core potentials are not implemented yet; "
+                            "use an all-electron basis for gradients, optimisations and frequencies")
+    relativity = getattr(p, "relativity", None)
+    if relativity not in (None, "none"):
+        raise SettingsError(f"analytic gradients with the {relativity!r} Hamiltonian are not implemented yet; "
+                            "use relativity='none' for gradients, optimisations and frequencies")
 
 
 def _restart_density(start, p: _Problem, one: _OneElectron) -> np.ndarray:

@@ -177,3 +177,15 @@ def test_restart_from_another_molecule_or_basis_is_refused():
         solve_molecule("N 0 0 0\nN 0 0 1.1\n", basis="sto-3g", xc="lda", grid="coarse", start=water)
     with pytest.raises(SettingsError, match="MoleculeResult"):
         solve_molecule(WATER, basis="sto-3g", xc="lda", grid="coarse", start="previous")
+
+
+def test_qcschema_of_a_gradient_run_uses_the_gradient_driver():
+    # QCSchema's AtomicResult (qcelemental, test extra): driver "gradient", return_result natoms × 3 Ha/bohr
+    models = pytest.importorskip("qcelemental.models")
+    from ks1d.qcschema import molecule_to_qcschema
+
+    res = solve_molecule(WATER, basis="sto-3g", xc="lda", grid="coarse", gradient=True)
+    doc = json.loads(dumps(molecule_to_qcschema(res)))
+    parsed = models.AtomicResult(**doc)
+    assert parsed.driver == "gradient"
+    assert np.allclose(np.asarray(parsed.return_result).reshape(-1, 3), res.gradient)

@@ -227,7 +227,8 @@ def optimize_molecule(geometry, basis="def2-svp", xc="pbe", charge: int = 0, mul
         except GeomOptNotConvergedError:
             converged = False
     res = last["result"]
-    final_xyz = xyz_text(geom.symbols, last["coords"], f"ks1d optimised geometry: {xc}/{basis}, "
+    label = "optimised geometry" if converged else "last geometry of an unconverged optimisation"
+    final_xyz = xyz_text(geom.symbols, last["coords"], f"ks1d {label}: {xc}/{basis}, "
                                                        f"E = {res.total_energy:.10f} Ha")
     if not converged:
         raise OptimizationError(

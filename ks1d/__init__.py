@@ -5,7 +5,10 @@ Public API::
 
     import ks1d
     atom = ks1d.solve_atom("Fe", xc="pbe")                 # radial, basis-set limit
-    mol = ks1d.solve_molecule("water.xyz", basis="def2-svp", xc="pbe")
+    mol = ks1d.solve_molecule("water.xyz", basis="def2-svp", xc="pbe", gradient=True)
+    opt = ks1d.optimize_molecule("water.xyz", basis="def2-svp", xc="pbe")   # .geometry (XYZ, Å)
+    vib = ks1d.harmonic_frequencies(opt.geometry, basis="def2-svp", xc="pbe")  # .wavenumbers (cm^-1)
+    # ks1d.ase.KS1D(basis=..., xc=...) is an ASE calculator (import ks1d.ase)
 
 Heavy modules (pyscf) are imported on first use only.
 """
@@ -13,7 +16,8 @@ from __future__ import annotations
 
 from ._version import __version__
 
-__all__ = ["solve_atom", "solve_molecule", "resolve_functional", "__version__"]
+__all__ = ["solve_atom", "solve_molecule", "optimize_molecule", "harmonic_frequencies", "resolve_functional",
+           "__version__"]
 
 
 def __getattr__(name):
@@ -25,6 +29,14 @@ def __getattr__(name):
         from .gaussian.scf import solve_molecule
 
         return solve_molecule
+    if name == "optimize_molecule":
+        from .optimize import optimize_molecule
+
+        return optimize_molecule
+    if name == "harmonic_frequencies":
+        from .frequencies import harmonic_frequencies
+
+        return harmonic_frequencies
     if name == "resolve_functional":
         from .xc import resolve_functional
 

@@ -26,6 +26,8 @@ from __future__ import annotations
 
 from typing import Any
 
+import numpy as np
+
 from ._version import __version__
 from .serialize import plain
 
@@ -52,17 +54,17 @@ def _properties(res, nbasis: int, natom: int) -> dict[str, Any]:
 
 
 def _document(molecule: dict, method: str, basis: str | None, keywords: dict, properties: dict,
-              res, routine: str) -> dict[str, Any]:
+              res, routine: str, driver: str = "energy", result=None) -> dict[str, Any]:
     return plain({
         "schema_name": SCHEMA_NAME,
         "schema_version": SCHEMA_VERSION,
         "molecule": molecule,
-        "driver": "energy",
+        "driver": driver,
         "model": {"method": method, "basis": basis},
         "keywords": keywords,
         "provenance": {"creator": "ks1d", "version": __version__, "routine": routine},
         "properties": properties,
-        "return_result": res.total_energy,
+        "return_result": res.total_energy if result is None else result,
         "success": bool(res.converged),
         "extras": {"ks1d": res.to_dict()},
     })
@@ -113,4 +115,9 @@ def molecule_to_qcschema(res) -> dict[str, Any]:
     props["scf_dipole_moment"] = list(res.dipole)
     keywords = {"spin": res.spin, "grid_level": res.settings.get("grid_level"), "scf": res.settings.get("scf"),
                 "relativity": res.settings.get("relativity", "none")}
+    if res.gradient is not None:  # solve_molecule(..., gradient=True): the gradient driver (Ha/bohr, flat)
+        grad = [float(x) for x in np.asarray(res.gradient).ravel()]
+        props["return_gradient"] = props["scf_total_gradient"] = grad
+        return _document(molecule, res.functional["name"], basis_name, keywords, props, res,
+                         "ks1d.solve_molecule", driver="gradient", result=grad)
     return _document(molecule, res.functional["name"], basis_name, keywords, props, res, "ks1d.solve_molecule")

@@ -19,3 +19,7 @@ BOHR_TO_ANGSTROM: float = _c.physical_constants["Bohr radius"][0] * 1e10
 ANGSTROM_TO_BOHR: float = 1.0 / BOHR_TO_ANGSTROM
 #: atomic unit of electric dipole moment in debye (1 D = 1e-21 / c  C m)
 AU_DIPOLE_TO_DEBYE: float = (_c.e * _c.physical_constants["Bohr radius"][0]) / (1e-21 / _c.c)
+#: 1 hartree/bohr in eV/angstrom (forces)
+HARTREE_PER_BOHR_TO_EV_PER_ANGSTROM: float = HARTREE_TO_EV / BOHR_TO_ANGSTROM
+#: 1 u (unified atomic mass unit) in electron masses
+AMU_TO_ELECTRON_MASS: float = _c.physical_constants["atomic mass constant"][0] / _c.m_e

@@ -30,6 +30,22 @@ def register(sub) -> None:
     p.add_argument("--max-iterations", type=int, default=None, help="SCF iteration limit (default 100)")
     p.add_argument("--as-cluster", action="store_true",
                    help="compute the atoms of a periodic structure's cell as a finite cluster (with a warning)")
+    g = p.add_argument_group("forces, optimisation and frequencies")
+    g.add_argument("--gradient", action="store_true",
+                   help="also compute the analytic nuclear gradient (Ha/bohr) and forces (eV/Å)")
+    g.add_argument("--optimize", action="store_true",
+                   help="optimise the geometry (geomeTRIC internal coordinates; a line per step on stderr)")
+    g.add_argument("--output-xyz", metavar="OUT", default=None,
+                   help="with --optimize: write the optimised geometry (or the last one, if it fails) to OUT")
+    g.add_argument("--max-force", type=float, default=None, metavar="HA_PER_BOHR",
+                   help="with --optimize: convergence threshold on the largest force (default 4.5e-4)")
+    g.add_argument("--max-steps", type=int, default=100,
+                   help="with --optimize: optimisation steps before giving up (default 100)")
+    g.add_argument("--frequencies", action="store_true",
+                   help="harmonic frequencies from central differences of analytic gradients "
+                        "(after the optimisation when given with --optimize)")
+    g.add_argument("--fd-step", type=float, default=None, metavar="BOHR",
+                   help="with --frequencies: finite-difference step (default 0.005 bohr)")
     add_output_options(p, qcschema=True)
     p.set_defaults(func=run)
 
@@ -40,6 +56,7 @@ def run(args) -> int:
     from ..structure import read_structure
 
     check_writable(args.qcschema)
+    _check_task_options(args)
     basis = parse_basis(args.basis)
     structure = read_structure(args.structure)
     notes = []
@@ -50,11 +67,17 @@ def run(args) -> int:
     scf = {k: v for k, v in (("smearing", args.smearing), ("damping", args.damping),
                              ("level_shift", args.level_shift), ("max_iterations", args.max_iterations))
            if v is not None}
+    if args.optimize or args.frequencies:
+        for note in notes:
+            print(f"ks1d: warning: {note}", file=sys.stderr)
+        common = dict(basis=basis, xc=args.xc, charge=args.charge, multiplicity=args.multiplicity, spin=args.spin,
+                      grid=args.grid, scf=scf, guess=args.guess)
+        return _run_geometry_task(args, structure, common)
     bar = ProgressLine("molecule", enabled=not args.quiet)
     try:
         res = solve_molecule(structure, basis=basis, xc=args.xc, charge=args.charge,
                              multiplicity=args.multiplicity, spin=args.spin, grid=args.grid, guess=args.guess,
-                             scf=scf, progress=bar.scf)
+                             scf=scf, progress=bar.scf, gradient=args.gradient)
     finally:
         bar.close()
     for note in notes:
@@ -106,4 +129,122 @@ def format_molecule(res) -> str:
         if o.occupation > 1e-8 or (res.lumo_energy is not None and o.energy <= res.lumo_energy + 0.5):
             lines.append(f"{o.index + 1:<9}{o.spin:<12}{o.occupation:>11.4g}{o.energy:>16.8f}"
                          f"{o.energy * HARTREE_TO_EV:>14.5f}")
+    if res.gradient is not None:
+        lines += ["", format_gradient(res)]
     return "\n".join(lines)
+
+
+# ------------------------------------------------------------ gradient, optimisation, frequencies
+def _check_task_options(args) -> None:
+    """Refuse inconsistent flags before any computation."""
+    from ..errors import InputError
+
+    if args.output_xyz is not None and not args.optimize:
+        raise InputError("--output-xyz writes the optimised geometry; it needs --optimize")
+    if (args.max_force is not None or args.max_steps != 100) and not args.optimize:
+        raise InputError("--max-force and --max-steps apply to --optimize")
+    if args.fd_step is not None and not args.frequencies:
+        raise InputError("--fd-step applies to --frequencies")
+    check_writable(args.output_xyz)
+
+
+def format_gradient(res) -> str:
+    """Table of ∂E/∂R (Ha/bohr) and forces (eV/Å) per atom."""
+    import numpy as np
+
+    g, f = np.asarray(res.gradient), res.forces
+    lines = [f"{'atom':<8}{'dE/dx':>13}{'dE/dy':>13}{'dE/dz':>13}   (Ha/bohr)"
+             f"{'Fx':>12}{'Fy':>12}{'Fz':>12}   (eV/Å)"]
+    for i, sym in enumerate(res.geometry["symbols"]):
+        lines.append(f"{sym + str(i + 1):<8}{g[i, 0]:>13.7f}{g[i, 1]:>13.7f}{g[i, 2]:>13.7f}{'':11}"
+                     f"{f[i, 0]:>12.5f}{f[i, 1]:>12.5f}{f[i, 2]:>12.5f}")
+    lines.append(f"max |dE/dR| {np.abs(g).max():.3e} Ha/bohr; |sum of forces| "
+                 f"{np.abs(g.sum(axis=0)).max():.1e} Ha/bohr")
+    return "\n".join(lines)
+
+
+def format_optimization(opt) -> str:
+    lines = [f"geometry optimisation  {'converged' if opt.converged else 'NOT converged'} in {opt.iterations} "
+             f"gradient evaluations ({opt.timings['scf_iterations']} SCF iterations, {opt.timings['total']:.1f} s)",
+             f"final energy           {opt.total_energy:.10f} Ha, max force {opt.max_force:.2e} Ha/bohr "
+             f"(criterion {opt.criteria['max_force']:.1e})", "", "optimised geometry (XYZ, Å):", opt.geometry.rstrip()]
+    return "\n".join(lines)
+
+
+def format_frequencies(fr) -> str:
+    lines = [f"harmonic frequencies   {len(fr.wavenumbers)} modes{' (linear molecule)' if fr.linear else ''}, "
+             f"central differences of {fr.settings['gradients']} analytic gradients, step {fr.step:g} bohr",
+             f"largest force at the structure {fr.max_force:.2e} Ha/bohr", "",
+             f"{'mode':<6}{'wavenumber / cm^-1':>20}{'reduced mass / u':>18}"]
+    for i, (w, mu) in enumerate(zip(fr.wavenumbers, fr.reduced_masses), 1):
+        tag = "  (imaginary)" if w < 0 else ""
+        lines.append(f"{i:<6}{w:>20.2f}{mu:>18.4f}{tag}")
+    lines.append(f"zero-point energy      {fr.zero_point_energy:.8f} Ha  ({fr.zero_point_energy_ev:.5f} eV)")
+    return "\n".join(lines)
+
+
+def _run_geometry_task(args, structure, common: dict) -> int:
+    """--optimize and/or --frequencies."""
+    import warnings
+
+    from ..frequencies import harmonic_frequencies
+    from ..optimize import OptimizationError, optimize_molecule
+    from ..qcschema import molecule_to_qcschema
+
+    out = {}
+    texts = []
+    start = None
+    geometry = structure
+    if args.optimize:
+        def step_line(s):
+            if not args.quiet:
+                print(f"ks1d molecule: optimisation step {s.iteration}: E = {s.energy:.10f} Ha, max force "
+                      f"{s.max_force:.2e} Ha/bohr, step {s.step:.2e} bohr, {s.scf_iterations} SCF iterations",
+                      file=sys.stderr, flush=True)
+
+        criteria = {"max_force": args.max_force} if args.max_force is not None else None
+        try:
+            opt = optimize_molecule(structure, criteria=criteria, max_steps=args.max_steps, progress=step_line,
+                                    **common)
+        except OptimizationError as exc:
+            if args.output_xyz and exc.geometry:
+                _write_text(args.output_xyz, exc.geometry)
+                print(f"ks1d: the last geometry is in '{args.output_xyz}'", file=sys.stderr)
+            raise
+        if args.output_xyz:
+            _write_text(args.output_xyz, opt.geometry)
+        out["optimization"] = opt.to_dict()
+        texts += [format_molecule(opt.result), "", format_optimization(opt)]
+        geometry, start, final = opt.geometry, opt.result, opt.result
+    if args.frequencies:
+        bar = ProgressLine("molecule", enabled=not args.quiet)
+        try:
+            with warnings.catch_warnings():
+                warnings.simplefilter("ignore")  # the result's warnings are printed below
+                kw = {} if args.fd_step is None else {"step": args.fd_step}
+                fr = harmonic_frequencies(geometry, start=start, progress=lambda i, n: bar.update(
+                    f"frequencies: gradient {i} of {n}"), **kw, **common)
+        finally:
+            bar.close()
+        for note in fr.warnings:
+            print(f"ks1d: warning: {note}", file=sys.stderr)
+        out["frequencies"] = fr.to_dict()
+        if not args.optimize:
+            texts += [format_molecule(fr.reference)]
+        texts += ["", format_frequencies(fr)]
+        final = fr.reference
+    if args.qcschema:
+        write_json_document(molecule_to_qcschema(final), args.qcschema)
+        if args.qcschema == "-":
+            return 0
+    if args.json:
+        print(dumps(out["optimization"] if len(out) == 1 and "optimization" in out else
+                    out["frequencies"] if len(out) == 1 else out))
+    else:
+        print("\n".join(texts))
+    return 0
+
+
+def _write_text(path: str, text: str) -> None:
+    with open(path, "w", encoding="utf-8") as fh:
+        fh.write(text)

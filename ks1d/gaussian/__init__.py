@@ -10,6 +10,7 @@ Modules (data flows top to bottom):
 * :mod:`.guess`       superposed potentials of ks1d's radial atoms
 * :mod:`.occupations` aufbau and Fermi–Dirac occupations
 * :mod:`.scf`         the RKS/UKS loop, :func:`solve_molecule`
+* :mod:`.gradient`    analytic nuclear gradient (derivative integrals, XC with grid response)
 * :mod:`.result`      frozen result dataclasses
 * :mod:`.parallel`    BLAS threading control for the grid loops
 

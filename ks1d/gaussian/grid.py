@@ -193,6 +193,10 @@ class MolecularGrid:
     coords: np.ndarray   # (N, 3)
     weights: np.ndarray  # (N,)
     blocks: tuple        # tuple of (start, stop)
+    # the atom whose spherical grid each point belongs to, and its weight before the Becke
+    # partition (w_i w_j r²); the nuclear gradient's grid-response term needs both
+    owner: np.ndarray | None = None         # (N,) int
+    atomic_weights: np.ndarray | None = None  # (N,)
 
     @property
     def size(self) -> int:
@@ -231,15 +235,18 @@ def build_grid(geometry, level="default", block_size: int = 448, box: float = 2.
     centres = geometry.coordinates
     radii = np.array([bragg_slater_radius(Z) for Z in geometry.numbers])
     a = becke_size_parameters(radii)
-    all_pts, all_w = [], []
+    all_pts, all_w, all_owner, all_w0 = [], [], [], []
     for A, Z in enumerate(geometry.numbers):
-        pts, w = atomic_grid(Z, lvl)
+        pts, w0 = atomic_grid(Z, lvl)
         pts = pts + centres[A]
-        w = w * becke_weights(pts, A, centres, a)
+        w = w0 * becke_weights(pts, A, centres, a)
         keep = np.abs(w) > weight_cutoff  # some Lebedev rules (74, 230, 266) have negative weights
         all_pts.append(pts[keep])
         all_w.append(w[keep])
+        all_w0.append(w0[keep])
+        all_owner.append(np.full(int(keep.sum()), A))
     coords = np.concatenate(all_pts)
     weights = np.concatenate(all_w)
     order, blocks = _spatial_blocks(coords, block_size, box)
-    return MolecularGrid(lvl.name, np.ascontiguousarray(coords[order]), weights[order], blocks)
+    return MolecularGrid(lvl.name, np.ascontiguousarray(coords[order]), weights[order], blocks,
+                         owner=np.concatenate(all_owner)[order], atomic_weights=np.concatenate(all_w0)[order])

@@ -28,7 +28,7 @@ matrices and the grid, guess, iterate, analyse.
 from __future__ import annotations
 
 import time
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 import numpy as np
 
@@ -44,7 +44,7 @@ from .geometry import nuclear_repulsion, read_geometry
 from .grid import build_grid, grid_level
 from .guess import guess_fock
 from .occupations import aufbau, fermi_dirac
-from .result import MolecularOrbital, MoleculeResult
+from .result import ConvergedState, MolecularOrbital, MoleculeResult
 
 
 def canonical_orthogonaliser(S: np.ndarray, threshold: float = 1e-8) -> np.ndarray:
@@ -452,7 +452,7 @@ def solve_molecule(geometry, basis="def2-svp", xc="pbe", charge: int = 0, multip
                    spin: str | None = None, grid="default", guess: str = "atoms",
                    scf: SCFOptions | dict | None = None, ao_cache_mb: float = 1024.0,
                    coulomb_fitting: bool | None = None, fit_switch: float = FIT_SWITCH_GRADIENT,
-                   progress=None) -> MoleculeResult:
+                   progress=None, gradient: bool = False, start=None) -> MoleculeResult:
     """Self-consistent Kohn–Sham (or Hartree–Fock) ground state of a molecule.
 
     geometry: XYZ file path, XYZ text (Å) or a :class:`~ks1d.gaussian.geometry.Geometry`.
@@ -470,22 +470,36 @@ def solve_molecule(geometry, basis="def2-svp", xc="pbe", charge: int = 0, multip
     exact build.  Convergence is only ever declared on an exact build, so
     the result carries no fitting error.
     ``progress`` (optional) is called with every SCF :class:`~ks1d.errors.IterationRecord`.
+    gradient: also compute the analytic nuclear gradient (``result.gradient``, Ha/bohr;
+    ``result.forces``, eV/Å; :mod:`ks1d.gaussian.gradient`); the SCF then defaults to the tighter
+    :data:`GRADIENT_RESIDUAL_TOLERANCE`.
+    start: a previous :class:`MoleculeResult` (same atoms and basis, e.g. the previous step of a
+    geometry optimisation) whose converged orbitals, re-orthonormalised in this geometry's
+    overlap, replace the initial guess.
     Raises :class:`~ks1d.errors.ConvergenceError` (with the history) if the SCF fails.
     """
     t_start = time.perf_counter()
+    if gradient:
+        scf = _gradient_scf_options(scf)
     p = _set_up(geometry, basis, xc, charge, multiplicity, spin, grid, scf)
+    if gradient:
+        _check_gradient_support(p)
     t_setup = time.perf_counter()
     one = _one_electron(p)
     mgrid = build_grid(p.geom, p.lvl)
     bog = BasisOnGrid(p.bset, mgrid, 1 if p.func.needs_gradient else 0, cache_mb=ao_cache_mb)
     t_grid = time.perf_counter()
     orb = _Orbitals(p, one)
-    F0, guess_used = guess_fock(guess, one.hcore, p.geom, bog)
-    F_guess = np.array([F0] * p.ns)
+    if start is None:
+        F0, guess_used = guess_fock(guess, one.hcore, p.geom, bog)
+        F_guess = np.array([F0] * p.ns)
     t_guess = time.perf_counter()
     if coulomb_fitting is None:  # exact J is cheap for small bases; fitting pays from ~100 functions
         coulomb_fitting = p.bset.nao >= FITTING_MIN_FUNCTIONS
     fock = _FockBuilder(p.bset, p.func, bog, one.hcore, one.T, one.Vn, p.restricted, fitting=coulomb_fitting)
+    if start is not None:
+        F_guess, guess_used = fock(_restart_density(start, p, one))[0], "previous result"
+        t_guess = time.perf_counter()
     out = _iterate(p, one, orb, fock, F_guess, fit_switch, progress)
     timings = {
         "setup": t_setup - t_start,
@@ -497,7 +511,8 @@ def solve_molecule(geometry, basis="def2-svp", xc="pbe", charge: int = 0, multip
     }
     extra = {"basis": basis if isinstance(basis, (str, dict)) else str(basis), "guess": guess_used,
              "coulomb_fitting": bool(coulomb_fitting), "fit_switch": float(fit_switch)}
-    return _analyse(p, one, orb, out, mgrid, extra, timings, t_start)
+    res = _analyse(p, one, orb, out, mgrid, extra, timings, t_start)
+    return _attach_state_and_gradient(res, p, orb, out, bog, gradient)
 
 
 def _analyse(p: _Problem, one: _OneElectron, orb: _Orbitals, out: _Outcome, mgrid, extra: dict,
@@ -545,3 +560,84 @@ def _analyse(p: _Problem, one: _OneElectron, orb: _Orbitals, out: _Outcome, mgri
         orbitals=orbitals, homo_energy=homo, lumo_energy=lumo, homo_lumo_gap=gap,
         mulliken_charges=tuple(float(q) for q in charges), dipole=tuple(float(x) for x in dip),
         spin_square=s2, geometry=geom.to_dict(), basis_functions=bset.nao, grid_points=mgrid.size)
+
+
+# ------------------------------------------------ restarts and nuclear gradients
+#: orbital-gradient tolerance of SCFs whose nuclear gradient is wanted (unless the caller sets one):
+#: the gradient error is first order in the SCF residual; 1e-7 keeps it below ~1e-6 Ha/bohr
+GRADIENT_RESIDUAL_TOLERANCE = 1e-7
+GRADIENT_ENERGY_TOLERANCE = 1e-10
+
+
+def _gradient_scf_options(scf) -> SCFOptions:
+    opts = SCFOptions.coerce(scf)
+    return replace(opts,
+                   residual_tolerance=opts.residual_tolerance or GRADIENT_RESIDUAL_TOLERANCE,
+                   energy_tolerance=opts.energy_tolerance or GRADIENT_ENERGY_TOLERANCE)
+
+
+def _check_gradient_support(p: _Problem) -> None:
+    """Refuse, before the SCF, Hamiltonians whose derivative integrals the gradient lacks."""
+    if p.bset.mol.has_ecp():
+        raise SettingsError("analytic gradients with effective core potentials are not implemented yet; "
+                            "use an all-electron basis for gradients, optimisations and frequencies")
+    relativity = getattr(p, "relativity", None)
+    if relativity not in (None, "none"):
+        raise SettingsError(f"analytic gradients with the {relativity!r} Hamiltonian are not implemented yet; "
+                            "use relativity='none' for gradients, optimisations and frequencies")
+
+
+def _restart_density(start, p: _Problem, one: _OneElectron) -> np.ndarray:
+    """Spin density matrices from a previous result's occupied orbitals C (Löwdin-orthonormalised in
+    this overlap S: C ← C (CᵀSC)^(−½)), converted between restricted and polarized channels."""
+    state = getattr(start, "state", None)
+    if state is None:
+        raise SettingsError("start must be a MoleculeResult of solve_molecule (with its converged state), "
+                            f"got {type(start).__name__}")
+    if tuple(state.symbols) != tuple(p.geom.symbols) or dict(state.basis) != dict(p.bset.description) \
+            or state.densities.shape[-1] != p.bset.nao:
+        raise SettingsError("start: the previous result has other atoms or another basis than this job "
+                            f"({' '.join(state.symbols)}, {state.densities.shape[-1]} functions vs "
+                            f"{' '.join(p.geom.symbols)}, {p.bset.nao} functions)")
+    dms = []
+    for C, f in zip(state.occupied_orbitals, state.occupations):
+        s, U = np.linalg.eigh(C.T @ one.S @ C)
+        C = C @ (U / np.sqrt(s)) @ U.T
+        dms.append((C * f) @ C.T)
+    dms = np.array(dms)
+    if p.restricted and len(dms) == 2:
+        dms = dms.sum(axis=0, keepdims=True)
+    elif not p.restricted and len(dms) == 1:
+        dms = np.array([0.5 * dms[0]] * 2)
+    return dms
+
+
+def _attach_state_and_gradient(res: MoleculeResult, p: _Problem, orb: _Orbitals, out: _Outcome, bog,
+                               want_gradient: bool) -> MoleculeResult:
+    """The converged state (orbitals of the last Fock matrix) and, if asked, the nuclear gradient."""
+    from .gradient import energy_weighted_density, nuclear_gradient
+
+    t0 = time.perf_counter()
+    Cs, es, fs = orb.diagonalise(out.F)
+    D = orb.density(Cs, fs)
+    W = energy_weighted_density(Cs, es, fs)
+    occ = [f > 1e-14 for f in fs]
+    state = ConvergedState(densities=D, energy_weighted=W, occupied_orbitals=tuple(C[:, o] for C, o in zip(Cs, occ)),
+                           occupations=tuple(f[o] for f, o in zip(fs, occ)), symbols=tuple(p.geom.symbols),
+                           basis=dict(p.bset.description))
+    if not want_gradient:
+        return replace(res, state=state)
+    terms = nuclear_gradient(p.func, p.bset, bog, p.geom, D, W, p.restricted)
+    grad = terms.total
+    grad.flags.writeable = False
+    warnings = list(res.warnings)
+    if p.options.smearing > 0:
+        warnings.append("with smearing the gradient is that of the Mermin free energy E - T S "
+                        "(the smeared ensemble), not of total_energy alone")
+    timings = dict(res.timings, gradient=time.perf_counter() - t0)
+    timings["total"] = res.timings["total"] + timings["gradient"]
+    settings = dict(res.settings, gradient={"translation_defect": terms.translation_defect,
+                                            "grid_response": True,
+                                            "grid_response_size": float(np.abs(terms.grid_response).max())})
+    return replace(res, gradient=grad, state=state, gradient_terms=terms, warnings=tuple(warnings), timings=timings,
+                   settings=settings)

@@ -158,7 +158,10 @@ class DiracProblem(AtomicProblem):
         HY = np.stack([pencil.H_dot(Y[:, k]) for k in range(ch.count)], axis=1)
         MY = np.stack([pencil.M_dot(Y[:, k]) for k in range(ch.count)], axis=1)
         Hs, Ms = Y.T @ HY, Y.T @ MY
-        E, U = sl.eigh(0.5 * (Hs + Hs.T), 0.5 * (Ms + Ms.T))
+        try:  # two refinements that reached the same state make Ms singular: dense fallback
+            E, U = sl.eigh(0.5 * (Hs + Hs.T), 0.5 * (Ms + Ms.T))
+        except sl.LinAlgError:
+            return None
         X = Y @ U
         if any(sign_changes(X[:N, k]) != k for k in range(ch.count)):
             return None

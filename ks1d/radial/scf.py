@@ -636,9 +636,9 @@ def _anion_spec(spec: MeshSpec, charge: float) -> MeshSpec:
 #: (benchmarks/bench_radial_convergence.py).  A Gaussian nucleus makes the solutions
 #: analytic at r = 0; its levels resolve the nuclear radius instead.
 PRECISION_RELATIVISTIC: dict[str, MeshSpec] = {
-    "low": MeshSpec(n_elements=18, order=8, r_first=1e-3, r_max=35.0),
-    "normal": MeshSpec(n_elements=24, order=10, r_first=1e-4, r_max=40.0),
-    "high": MeshSpec(n_elements=40, order=12, r_first=1e-5, r_max=50.0),
+    "low": MeshSpec(n_elements=20, order=8, r_first=1e-4, r_max=35.0),
+    "normal": MeshSpec(n_elements=26, order=10, r_first=3e-6, r_max=40.0),
+    "high": MeshSpec(n_elements=40, order=12, r_first=1e-6, r_max=50.0),
 }
 
 #: functional families each relativistic Hamiltonian supports (x2c: all the solver supports)

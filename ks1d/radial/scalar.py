@@ -82,13 +82,17 @@ class ScalarProblem(AtomicProblem):
         self._eps: dict = {}
         self._vec: dict = {}
         self.newton_solves = self.dense_solves = 0
+        self.fallbacks: list = []
         self._ab_s = banded(self.S, m.order)
-        # element blocks of the three shapes that multiply a = 1/M − 1
-        self._dd = np.einsum("eqi,eqj->eqij", m.dphi, m.dphi)
-        pp = np.einsum("qi,qj->qij", m.phi, m.phi)
+        # per l, the element-block shapes that multiply a = 1/M − 1 at each quadrature point,
+        # ½[φ′φ′ + (l(l+1)+1) φφ/r² − (φ′φ + φφ′)/r] times the weight, flattened to (nel, nq, (p+1)²)
+        dd = np.einsum("eqi,eqj->eqij", m.dphi, m.dphi)
+        pp = np.einsum("qi,qj->qij", m.phi, m.phi)[None] / (m.r**2)[:, :, None, None]
         dp = np.einsum("eqi,qj->eqij", m.dphi, m.phi)
-        self._pp_r2 = pp[None] / (m.r**2)[:, :, None, None]
-        self._mix_r = (dp + dp.transpose(0, 1, 3, 2)) / m.r[:, :, None, None]
+        mix = (dp + dp.transpose(0, 1, 3, 2)) / m.r[:, :, None, None]
+        w = m.w[:, :, None, None]
+        self._shape = {l: (0.5 * w * (dd + (l * (l + 1) + 1) * pp - mix)).reshape(m.nel, m.r.shape[1], -1)
+                       for l in {ch.l for ch in self.channels}}
 
     # ---------------------------------------------------------------- potentials
     def local_potential(self, pot: dict) -> np.ndarray:
@@ -112,8 +116,7 @@ class ScalarProblem(AtomicProblem):
     def _correction(self, a: np.ndarray, l: int) -> np.ndarray:
         """∫ a [½φ′φ′ + (l(l+1)+1)φφ/(2r²) − ½(φ′φ + φφ′)/r] dr assembled."""
         m = self.mesh
-        wa = m.w * a
-        blocks = np.einsum("eq,eqij->eij", 0.5 * wa, self._dd + (l * (l + 1) + 1) * self._pp_r2 - self._mix_r)
+        blocks = np.einsum("eq,eqk->ek", a, self._shape[l]).reshape(m.nel, m.order + 1, m.order + 1)
         return m.assemble(blocks)
 
     def _expectation(self, a: np.ndarray, l: int, u: np.ndarray, du: np.ndarray) -> float:
@@ -143,15 +146,19 @@ class ScalarProblem(AtomicProblem):
                 e = self._eps.get(okey)
                 x_prev = self._vec.get(okey)
                 if e is None:
-                    # start from the channel's non-relativistic eigenpairs (one dense solve per channel)
+                    # start from the eigenpairs of H(ε = 0) (one dense solve per channel).  Not from the
+                    # non-relativistic operator: on the finely graded relativistic mesh its norm, ~1/r₁²,
+                    # is beyond what LAPACK's selected-eigenpair driver resolves, while M(r) ∝ r near a
+                    # point nucleus keeps H(ε)'s norm near c²/(Z r₁).
                     if guess is None:
-                        guess = sl.eigh(h_nr, self.S, subset_by_index=[0, ch.count - 1], driver="gvx",
+                        h0 = h_nr + self._correction(-(0.0 - v) / (2.0 * c2 + (0.0 - v)), ch.l)
+                        guess = sl.eigh(h0, self.S, subset_by_index=[0, ch.count - 1], driver="gvx",
                                         check_finite=False)
+                        guess = (np.einsum("ik,ij,jk->k", guess[1], h0, guess[1]), guess[1])
                     e, x_prev = float(guess[0][k]), guess[1][:, k]
                 # Newton on ε; each step's eigenvector from one shifted banded solve (shift ε,
                 # Rayleigh-quotient-like) warm-started from the last one, or a dense solve
                 dense = x_prev is None
-                e0 = e
                 for step in range(2 * MAX_NEWTON):
                     dv = e - v
                     a = -dv / (2.0 * c2 + dv)
@@ -165,13 +172,12 @@ class ScalarProblem(AtomicProblem):
                                 vec = y / np.sqrt(float(y @ self.S @ y))
                         except (sl.LinAlgError, ValueError):
                             vec = None
-                        if vec is None:
-                            dense, e = True, e0
-                            continue
-                    else:
+                    if vec is None:  # first step, or the shifted solve left the state: one dense solve
+                        self.fallbacks.append((ch.spin, ch.l, k, step, None if dense else sign_changes(y)))
                         _, vec = sl.eigh(h, self.S, subset_by_index=[k, k], driver="gvx", check_finite=False)
                         vec = vec[:, 0]
                         self.dense_solves += 1
+                    dense = False
                     self.newton_solves += 1
                     x_prev = vec
                     u, du = m.values(vec)
@@ -204,16 +210,14 @@ class ScalarProblem(AtomicProblem):
         return out
 
     def initial_state(self, charge: float) -> np.ndarray:
-        """Non-relativistic orbitals in the Thomas–Fermi potential (no small component yet)."""
+        """Koelling–Harmon orbitals in the Thomas–Fermi potential."""
         m = self.mesh
-        V = m.assemble(m.weighted_blocks(thomas_fermi_potential(self.Z, m.r, charge)))
-        out = Orbitals()
-        for ch in self.channels:
-            h = self.T + V + 0.5 * ch.l * (ch.l + 1) * self.C
-            e, C = sl.eigh(h, self.S, subset_by_index=[0, ch.count - 1], driver="gvx", check_finite=False)
-            out[(ch.spin, ch.l)] = (C * np.where(C[0] < 0, -1.0, 1.0), e)
-            out.small[(ch.spin, ch.l)] = None
-        return self.state(out)
+        v = thomas_fermi_potential(self.Z, m.r, charge)
+        if self.nucleus != "point":
+            v = v + self.Z / m.r + self.v_nuc
+        V = m.assemble(m.weighted_blocks(v))
+        H = {(ch.spin, ch.l): (self.T + V + 0.5 * ch.l * (ch.l + 1) * self.C, v, V) for ch in self.channels}
+        return self.state(self.diagonalise(H))
 
     # ---------------------------------------------------------------- densities and energy
     def density_state(self, orbitals: Orbitals) -> np.ndarray:

@@ -221,3 +221,15 @@ def test_cli_json_reports_relativity_and_j():
     table = run_cli("atom", "Ne", "--relativity", "scalar", "--no-error-estimate")
     assert table.returncode == 0, table.stderr
     assert "scalar" in table.stdout
+
+
+@pytest.mark.parametrize("relativity", ["none", "scalar", "x2c", "dirac"])
+def test_relativistic_lda_exchange_works_with_every_hamiltonian(relativity):
+    # libxc's lda_x_rel (the relativistic correction of Slater exchange, A. H. MacDonald and S. H. Vosko,
+    # J. Phys. C 12, 2977 (1979); the exchange of the NIST RLDA tables) weakens exchange near the nucleus,
+    # so the energy rises; its effect is larger with a relativistic (contracted) core
+    plain = ks1d.solve_atom("Kr", xc="lda", spin="restricted", relativity=relativity, estimate_error=False)
+    rel = ks1d.solve_atom("Kr", xc="lda_x_rel,lda_c_vwn", spin="restricted", relativity=relativity,
+                          estimate_error=False)
+    assert rel.converged and rel.functional["libxc"] == "lda_x_rel,lda_c_vwn"
+    assert 0.5 < rel.total_energy - plain.total_energy < 10.0

@@ -167,6 +167,21 @@ class RadialMesh:
         out = np.bincount(flat, weights=blocks[mask], minlength=self.size * self.size)
         return out.reshape(self.size, self.size)
 
+    @cached_property
+    def _band_scatter(self):
+        """Flat indices into the (2p+1, size) LAPACK band storage (ab[p + i − j, j] = a_ij) of element blocks."""
+        p = self.order
+        ii = np.broadcast_to(self.dof[:, :, None], (self.nel, p + 1, p + 1))
+        jj = np.broadcast_to(self.dof[:, None, :], ii.shape)
+        mask = (ii >= 0) & (jj >= 0)
+        return (p + ii[mask] - jj[mask]) * self.size + jj[mask], mask
+
+    def assemble_banded(self, blocks: np.ndarray) -> np.ndarray:
+        """Sum element blocks (nel, p+1, p+1) into LAPACK band storage (2p+1, size) of bandwidth p."""
+        flat, mask = self._band_scatter
+        n = (2 * self.order + 1) * self.size
+        return np.bincount(flat, weights=blocks[mask], minlength=n).reshape(2 * self.order + 1, self.size)
+
     def assemble_sparse(self, blocks: np.ndarray):
         """Sum element blocks into a sparse (CSR) global matrix of bandwidth p."""
         from scipy.sparse import csr_matrix

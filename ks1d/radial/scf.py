@@ -113,6 +113,8 @@ class AtomicProblem:
 
     #: the relativistic Hamiltonian this class solves (subclasses: "scalar", "dirac")
     relativity = "none"
+    #: density residual of the last SCF iteration (set by run_scf)
+    scf_residual = float("inf")
 
     def __init__(self, Z: int, config: Configuration, func: Functional, spec: MeshSpec,
                  interacting: bool = True, open_shell_exchange: str = "average", *,
@@ -599,6 +601,7 @@ def run_scf(problem: AtomicProblem, settings: SCFOptions, charge: float, start: 
         en = problem.energy(orbitals, dens_out, K_out, R_out)
         dx = x_out - x_in
         res = problem.residual_norm(dx)
+        problem.scf_residual = res  # lets energy-dependent Hamiltonians tighten inner solves as the SCF converges
         de = en["total"] - e_prev
         history.append(IterationRecord(it, en["total"], float(de) if np.isfinite(de) else float("nan"), res))
         if not np.isfinite(en["total"]) or not np.isfinite(res):

@@ -652,6 +652,17 @@ PRECISION_RELATIVISTIC: dict[str, MeshSpec] = {
 #: relative rounding floor of relativistic SCF energies (see run_scf)
 RELATIVISTIC_ENERGY_NOISE = 1e-13
 
+#: Precision levels of the relativistic Hamiltonians with the Gaussian nucleus.  Its solutions are
+#: analytic at r = 0 and the nuclear radius (~1e-4 bohr for U) is resolved from r_first/Z on;
+#: grading further in would only add elements inside a flat potential (and, for the
+#: Koelling-Harmon operator, whose M(r) stays finite there, a matrix norm ~1/r₁² beyond what the
+#: dense eigen-solver resolves).
+PRECISION_RELATIVISTIC_GAUSSIAN: dict[str, MeshSpec] = {
+    "low": MeshSpec(n_elements=16, order=8, r_first=1e-2, r_max=35.0),
+    "normal": MeshSpec(n_elements=20, order=10, r_first=1e-3, r_max=40.0),
+    "high": MeshSpec(n_elements=32, order=12, r_first=1e-4, r_max=50.0),
+}
+
 #: functional families each relativistic Hamiltonian supports (x2c: all the solver supports)
 _SEMILOCAL_ONLY = {"scalar": "the Koelling-Harmon equation needs a local potential in M(r)",
                    "dirac": "the four-component solver implements semilocal potentials on both components"}
@@ -663,6 +674,8 @@ def default_mesh(precision: str, relativity: str = "none", nucleus: str = "point
         raise SettingsError(f"precision must be one of {', '.join(PRECISION)}, got {precision!r}")
     if relativity == "none":
         return PRECISION[precision]
+    if nucleus == "gaussian":
+        return PRECISION_RELATIVISTIC_GAUSSIAN[precision]
     return PRECISION_RELATIVISTIC[precision]
 
 

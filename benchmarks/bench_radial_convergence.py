@@ -44,8 +44,9 @@ def relativistic_rows(argv):
         print(f"\n{sym} lda {rel} {nuc} nucleus: reference E = {e_ref:.10f} Ha")
         for name in ("low", "normal", "high"):
             res = ks1d.solve_atom(sym, precision=name, **kw)
+            est = "   not converged" if res.error_estimate is None else f"{res.error_estimate * 1e6:10.4f} µHa"
             print(f"precision {name:<7s} deviation {(res.total_energy - e_ref) * 1e6:+10.4f} µHa, "
-                  f"error estimate {res.error_estimate * 1e6:10.4f} µHa, basis size {res.settings['basis_size']}")
+                  f"error estimate {est}, basis size {res.settings['basis_size']}")
 
 
 def main(argv):

@@ -35,15 +35,16 @@ def ratios(symbol="Rn", xc="lda", repeats=3):
 
 
 def sweep():
-    t0 = time.perf_counter()
-    slow = []
-    for Z in range(1, 93):
-        t, res = timed(element=Z, xc="lda", relativity="scalar", spin="polarized")
-        slow.append((t, res.element))
-    total = time.perf_counter() - t0
-    slow.sort(reverse=True)
-    print(f"Z = 1-92 scalar LDA polarized: total {total:.1f} s; slowest " +
-          ", ".join(f"{el} {t:.2f} s" for t, el in slow[:3]))
+    for rel in ("none", "scalar"):
+        t0 = time.perf_counter()
+        slow = []
+        for Z in range(1, 93):
+            t, res = timed(element=Z, xc="lda", relativity=rel, spin="polarized")
+            slow.append((t, res.element))
+        total = time.perf_counter() - t0
+        slow.sort(reverse=True)
+        print(f"Z = 1-92 LDA polarized, relativity {rel}: total {total:.1f} s; slowest " +
+              ", ".join(f"{el} {t:.2f} s" for t, el in slow[:3]))
 
 
 def main():

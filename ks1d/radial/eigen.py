@@ -58,30 +58,6 @@ def sign_changes(v: np.ndarray, rel: float = 1e-7) -> int:
     return int(np.count_nonzero(np.signbit(big[1:]) != np.signbit(big[:-1])))
 
 
-class BandedPencil:
-    """H and M of one symmetric pencil, dense (for products) and banded (for shifted solves)."""
-
-    def __init__(self, H: np.ndarray, M: np.ndarray, bw: int, interleaved: bool = False,
-                 ab_m: np.ndarray | None = None):
-        self.H, self.M, self.bw = H, M, bw
-        _, _, _, self.perm, self.inv = _band_index(H.shape[0], bw, interleaved)
-        self.interleaved = interleaved
-        self.ab_h = banded(H, bw, interleaved)
-        self.ab_m = banded(M, bw, interleaved) if ab_m is None else ab_m
-
-    def H_dot(self, x: np.ndarray) -> np.ndarray:
-        return self.H @ x
-
-    def M_dot(self, x: np.ndarray) -> np.ndarray:
-        return self.M @ x
-
-    def solve_shifted(self, sigma: float, rhs: np.ndarray) -> np.ndarray:
-        """(H − σM)⁻¹ rhs."""
-        b = rhs[self.perm] if self.interleaved else rhs
-        y = sl.solve_banded((self.bw, self.bw), self.ab_h - sigma * self.ab_m, b, check_finite=False)
-        return y[self.inv] if self.interleaved else y
-
-
 @lru_cache(maxsize=64)
 def _interleaved_index(n: int, bw: int):
     """For the band storage of a 2×2 block matrix (blocks n × n) in interleaved order:
@@ -136,7 +112,7 @@ class BlockPencil:
         return y[self.inv]
 
 
-def rayleigh_refine(pencil: BandedPencil, x: np.ndarray, sigma: float, tol: float = 1e-13, max_steps: int = 5):
+def rayleigh_refine(pencil: "BlockPencil", x: np.ndarray, sigma: float, tol: float = 1e-13, max_steps: int = 5):
     """RQI from (x, σ): returns (λ, x with xᵀMx = 1, converged).
 
     Converged when the shift stops moving, |λ − σ| ≤ tol·max(1, |λ|): the last

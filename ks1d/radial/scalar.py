@@ -55,13 +55,34 @@ from .density import FOUR_PI
 from .eigen import banded, sign_changes
 from .mesh import MeshSpec
 from .poisson import hartree_energy
-from .relativity import SPEED_OF_LIGHT
+from .relativity import SPEED_OF_LIGHT, sommerfeld_energy
 from .scf import AtomicProblem, thomas_fermi_potential
 
 #: relative self-consistency of each orbital energy with its own M(ε)
 EPS_TOLERANCE = 1e-12
 #: Newton steps per orbital and SCF iteration
 MAX_NEWTON = 12
+
+
+def _dense_states(h: np.ndarray, S: np.ndarray, count: int, sigma: float) -> np.ndarray:
+    """The lowest ``count`` eigenvectors of h c = λ S c by shift-and-invert below the spectrum.
+
+    With σ below every eigenvalue, A = h − σS = LLᵀ is positive definite and the wanted
+    states are the largest eigenvalues μ = 1/(λ − σ) of L⁻¹ S L⁻ᵀ, whose norm is
+    1/(λ₀ − σ).  The selected-eigenpair driver applied to h itself fails on the fine
+    graded meshes of heavy atoms (norms of 1e10-1e11 Ha: bisection's tolerance ~ε‖h‖ no
+    longer separates bound levels); the inverted problem keeps them well separated.
+    Falls back to that driver if A is not positive definite.
+    """
+    try:
+        L = sl.cholesky(h - sigma * S, lower=True, check_finite=False)
+    except sl.LinAlgError:
+        return sl.eigh(h, S, subset_by_index=[0, count - 1], driver="gvx", check_finite=False)[1]
+    Y = sl.solve_triangular(L, S, lower=True, check_finite=False)
+    B = sl.solve_triangular(L, Y.T, lower=True, check_finite=False)
+    n = h.shape[0]
+    _, Z = sl.eigh(0.5 * (B + B.T), subset_by_index=[n - count, n - 1], driver="evr", check_finite=False)
+    return sl.solve_triangular(L.T, Z[:, ::-1], lower=False, check_finite=False)
 
 
 class Orbitals(dict):
@@ -85,6 +106,9 @@ class ScalarProblem(AtomicProblem):
         self._vec: dict = {}
         self.newton_solves = self.dense_solves = 0
         self.fallbacks: list = []
+        # a level below every eigenvalue: 1.5 × the bare point-nucleus 1s level (screening, a finite
+        # nucleus and l > 0 only raise the levels), for the shift-and-invert start
+        self._sigma = 1.5 * sommerfeld_energy(Z, 1, -1, self.c) - 10.0
         self._ab_s = banded(self.S, m.order)
         # per l, the element-block shapes that multiply a = 1/M − 1 at each quadrature point,
         # ½[φ′φ′ + (l(l+1)+1) φφ/r² − (φ′φ + φφ′)/r] times the weight, flattened to (nel, nq, (p+1)²)
@@ -158,7 +182,7 @@ class ScalarProblem(AtomicProblem):
                 # finely graded relativistic mesh its norm, ~1/r₁², is beyond what LAPACK's selected-
                 # eigenpair driver resolves, while M(r) ∝ r near a point nucleus keeps H(ε)'s norm ~c²/(Z r₁)
                 h0 = h_nr + self._correction(v / (2.0 * c2 - v), ch.l)
-                _, X = sl.eigh(h0, self.S, subset_by_index=[0, count - 1], driver="gvx", check_finite=False)
+                X = _dense_states(h0, self.S, count, self._sigma)
                 e = np.sum(X * (h0 @ X), axis=0) / np.sum(X * (self.S @ X), axis=0)
                 self.dense_solves += 1
             else:
@@ -188,8 +212,7 @@ class ScalarProblem(AtomicProblem):
                     if y is None:  # the shifted solve left the state: one dense solve
                         self.fallbacks.append((ch.spin, ch.l, k, step))
                         h = h_nr + m.assemble(blocks[j])
-                        _, y = sl.eigh(h, self.S, subset_by_index=[k, k], driver="gvx", check_finite=False)
-                        y = y[:, 0]
+                        y = _dense_states(h, self.S, k + 1, self._sigma)[:, k]
                         self.dense_solves += 1
                     X[:, k] = y / np.sqrt(float(y @ self.S @ y))
                 self.newton_solves += len(idx)

@@ -19,6 +19,17 @@ Spin assignment when no explicit (up, down) pair is given:
   high-spin assignment and turn electrons of the outermost open sub-shells
   down (or up) until N↑ − N↓ = 2S.
 
+j-resolved sub-shells (four-component Dirac atoms, ``relativity="dirac"`` only):
+
+* ``"[Xe] 4f14 5d10 6s2 6p1/2(1)"``   n, l letter, 2j "/2", electrons in parentheses;
+  a sub-shell n l j holds at most 2j+1 electrons and j must be l ± 1/2
+* ``"[Xe] 4f14 5d10 6s2 6p1/2(2) 6p3/2(0)"``   a j sub-shell listed with 0 electrons is
+  solved (its orbital energy is reported) but empty; a j partner that is not listed at all
+  is empty too
+* a plain n l occupation (and every sub-shell of a bracketed core) is split j-averaged,
+  in proportion 2j+1 over j = l − 1/2 and l + 1/2: ``6p3`` = ``6p1/2(1) 6p3/2(2)``
+* an n l sub-shell is given either plainly or by its j parts, not both
+
 Ions derived from a neutral configuration: a cation loses electrons from the
 outermost sub-shell (largest n, then largest l), e.g. Fe⁺ = [Ar] 3d6 4s1;
 an anion gains them in its open sub-shell, or in the next sub-shell in
@@ -106,11 +117,29 @@ class Configuration:
         return self.label()
 
 
+_J_TOKEN = re.compile(r"^(\d+)([spdfSPDF])(\d+)/2\(\s*([0-9.eE+-]+)\s*\)$")
 _TOKEN = re.compile(r"^(\d+)([spdfSPDF])(?:\(\s*([0-9.eE+-]+)\s*,\s*([0-9.eE+-]+)\s*\)|([0-9.eE+-]*))$")
 
 
 def parse_shells(text: str) -> dict[tuple[int, int], tuple[float, float | None]]:
-    """Parse a configuration string into {(n, l): (total, up-or-None)}."""
+    """Parse a configuration string into {(n, l): (total, up-or-None)}.
+
+    j-resolved sub-shells (``6p1/2(1)``) are refused here: they exist only for
+    four-component Dirac atoms (:func:`build_dirac_configuration`).
+    """
+    shells, jshells = _parse(text)
+    if jshells:
+        (n, l, j2), occ = next(iter(jshells.items()))
+        raise ConfigurationError(
+            f"j-resolved sub-shell '{n}{L_LETTERS[l]}{j2}/2({_fmt(occ)})' in '{text}' needs relativity='dirac' "
+            f"(the other Hamiltonians have no spin-orbit splitting); write the n l total instead, e.g. "
+            f"'{n}{L_LETTERS[l]}{_fmt(occ)}'"
+        )
+    return shells
+
+
+def _parse(text: str):
+    """({(n, l): (total, up-or-None)}, {(n, l, 2j): electrons}) of a configuration string."""
     if not isinstance(text, str) or not text.strip():
         raise ConfigurationError(f"configuration must be a non-empty string, got {text!r}")
     shells: dict[tuple[int, int], tuple[float, float | None]] = {}
@@ -131,7 +160,30 @@ def parse_shells(text: str) -> dict[tuple[int, int], tuple[float, float | None]]
             joined.append(tok)
     if buf:
         raise ConfigurationError(f"unclosed '(' in configuration '{text}'")
+    jshells: dict[tuple[int, int, int], float] = {}
     for tok in joined:
+        m_j = _J_TOKEN.match(tok)
+        if m_j:
+            n, l, j2 = int(m_j.group(1)), L_LETTERS.index(m_j.group(2).lower()), int(m_j.group(3))
+            label = f"{n}{L_LETTERS[l]}{j2}/2"
+            if n < l + 1:
+                raise ConfigurationError(f"sub-shell '{n}{L_LETTERS[l]}' does not exist (needs n ≥ l + 1) in '{text}'")
+            if j2 not in (2 * l - 1, 2 * l + 1) or j2 < 1:
+                allowed = " or ".join(f"{x}/2" for x in (2 * l - 1, 2 * l + 1) if x > 0)
+                raise ConfigurationError(f"'{tok}' in '{text}': a {L_LETTERS[l]} sub-shell has j = {allowed}")
+            try:
+                occ = float(m_j.group(4))
+                if occ < 0:
+                    raise ValueError
+            except ValueError:
+                raise ConfigurationError(f"bad occupation in '{tok}' of configuration '{text}'") from None
+            if occ > j2 + 1 + _TOL:
+                raise ConfigurationError(f"{label} holds at most 2j+1 = {j2 + 1} electrons, configuration "
+                                         f"'{text}' puts {_fmt(occ)} there")
+            if (n, l, j2) in jshells:
+                raise ConfigurationError(f"sub-shell {label} appears twice in configuration '{text}'")
+            jshells[(n, l, j2)] = occ
+            continue
         m_core = re.fullmatch(r"\[(\w+)\]", tok)
         if m_core:
             core = m_core.group(1).capitalize()
@@ -139,7 +191,7 @@ def parse_shells(text: str) -> dict[tuple[int, int], tuple[float, float | None]]
                 raise ConfigurationError(
                     f"unknown core '[{m_core.group(1)}]' in '{text}'; cores are {', '.join('[' + c + ']' for c in CORES)}"
                 )
-            for key, val in parse_shells(CORES[core]).items():
+            for key, val in _parse(CORES[core])[0].items():
                 _add(shells, key, val, text)
             continue
         m = _TOKEN.match(tok)
@@ -165,7 +217,11 @@ def parse_shells(text: str) -> dict[tuple[int, int], tuple[float, float | None]]
         except ValueError:
             raise ConfigurationError(f"bad occupation in '{tok}' of configuration '{text}'") from None
         _add(shells, (n, l), val, text)
-    return shells
+    for n, l, _ in jshells:
+        if (n, l) in shells:
+            raise ConfigurationError(f"sub-shell {n}{L_LETTERS[l]} is given both as a whole and by its j parts in "
+                                     f"'{text}'; give one of them")
+    return shells, jshells
 
 
 def _add(shells, key, val, text):
@@ -223,14 +279,9 @@ def _ionise(shells: dict, charge: float, label: str) -> dict:
     return {k: (v, None) for k, v in shells.items()}
 
 
-def build_configuration(Z: int, charge: float = 0.0, spin: str | int = "polarized",
-                        config: str | None = None) -> Configuration:
-    """The configuration of element Z with the given charge and spin treatment.
-
-    ``config`` overrides the ground-state configuration; its electron count
-    must then equal Z − charge.
-    """
-    el = element(Z)
+def _checked_charge(el, charge) -> float:
+    """The charge as a float; ConfigurationError for a non-number, a non-finite value, no electrons
+    left, or an anion beyond MIN_CHARGE."""
     try:
         charge = float(charge)
     except (TypeError, ValueError):
@@ -243,6 +294,18 @@ def build_configuration(Z: int, charge: float = 0.0, spin: str | int = "polarize
         raise ConfigurationError(
             f"charge {charge:+g} is below {MIN_CHARGE:+g}: ks1d solves atomic anions up to {-MIN_CHARGE:g} extra "
             "electrons (in a confinement box); more highly charged atomic anions are unbound")
+    return charge
+
+
+def build_configuration(Z: int, charge: float = 0.0, spin: str | int = "polarized",
+                        config: str | None = None) -> Configuration:
+    """The configuration of element Z with the given charge and spin treatment.
+
+    ``config`` overrides the ground-state configuration; its electron count
+    must then equal Z − charge.
+    """
+    el = element(Z)
+    charge = _checked_charge(el, charge)
     if config is None:
         shells = parse_shells(el.ground_configuration)
         if charge != 0:
@@ -320,3 +383,115 @@ def ground_state_multiplicity(key, charge: int = 0) -> int:
     if abs(two_s - round(two_s)) > 1e-8:
         raise SpinError(f"{el.symbol} (charge {charge:+d}) has a fractional ground-state spin 2S = {two_s:g}")
     return int(round(abs(two_s))) + 1
+
+
+# ---------------------------------------------------------------- j-resolved (Dirac) configurations
+@dataclass(frozen=True)
+class SpinorShell:
+    """A relativistic sub-shell n l j (j = j2/2) holding ``occupation`` electrons (at most 2j+1)."""
+
+    n: int
+    l: int
+    j2: int
+    occupation: float
+
+    @property
+    def kappa(self) -> int:
+        """κ = −(l+1) for j = l + 1/2, +l for j = l − 1/2."""
+        return -(self.l + 1) if self.j2 == 2 * self.l + 1 else self.l
+
+    @property
+    def capacity(self) -> int:
+        return self.j2 + 1
+
+    @property
+    def label(self) -> str:
+        return f"{self.n}{L_LETTERS[self.l]}{self.j2}/2"
+
+    def __str__(self) -> str:
+        return f"{self.label}({_fmt(self.occupation)})"
+
+
+@dataclass(frozen=True)
+class DiracConfiguration:
+    """j-resolved sub-shells in canonical (n, l, j) order (spin-restricted by construction)."""
+
+    shells: tuple[SpinorShell, ...]
+
+    @property
+    def n_electrons(self) -> float:
+        return sum(s.occupation for s in self.shells)
+
+    @property
+    def max_l(self) -> int:
+        return max(s.l for s in self.shells)
+
+    def label(self) -> str:
+        """e.g. '1s1/2(2) 2s1/2(2) 2p1/2(2) 2p3/2(4)'."""
+        return " ".join(str(s) for s in self.shells)
+
+    def __str__(self) -> str:
+        return self.label()
+
+    #: four-component atoms are spin-restricted
+    polarized = False
+
+    @property
+    def n_up(self) -> float:
+        return 0.5 * self.n_electrons
+
+    @property
+    def n_down(self) -> float:
+        return 0.5 * self.n_electrons
+
+    def scalar(self) -> Configuration:
+        """The n l totals as a spin-restricted :class:`Configuration` (for densities and labels)."""
+        tot: dict[tuple[int, int], float] = {}
+        for s in self.shells:
+            tot[(s.n, s.l)] = tot.get((s.n, s.l), 0.0) + s.occupation
+        return Configuration(tuple(Shell(n, l, f / 2, f / 2) for (n, l), f in sorted(tot.items()) if f > _TOL),
+                             polarized=False)
+
+
+def j_average(n: int, l: int, occupation: float) -> list[SpinorShell]:
+    """Split n l electrons over j = l ∓ 1/2 in proportion 2j+1 (2l and 2l+2 of 2(2l+1))."""
+    if l == 0:
+        return [SpinorShell(n, 0, 1, occupation)]
+    g = 2 * (2 * l + 1)
+    return [SpinorShell(n, l, 2 * l - 1, occupation * 2 * l / g),
+            SpinorShell(n, l, 2 * l + 1, occupation * (2 * l + 2) / g)]
+
+
+def build_dirac_configuration(Z: int, charge: float = 0.0, config: str | None = None) -> DiracConfiguration:
+    """The j-resolved configuration of element Z (module docstring for the syntax).
+
+    Without ``config`` the ground configuration (ionised by the module's rules) is
+    split j-averaged; an explicit one must hold Z − charge electrons.
+    """
+    el = element(Z)
+    charge = _checked_charge(el, charge)
+    if config is None:
+        shells = parse_shells(el.ground_configuration)
+        if charge != 0:
+            shells = _ionise(shells, charge, el.symbol)
+        text, jshells = el.ground_configuration, {}
+    else:
+        shells, jshells = _parse(config)
+        text = config
+    _check_capacity(shells, text)
+    for (n, l), (occ, up) in shells.items():
+        if up is not None:
+            raise SpinError(f"configuration '{text}' gives explicit (up, down) occupations; four-component Dirac "
+                            "atoms are spin-restricted (σ_z is not conserved), so give totals or j sub-shells")
+    out = [sh for (n, l), (occ, _) in shells.items() if occ > _TOL for sh in j_average(n, l, occ)]
+    out += [SpinorShell(n, l, j2, occ) for (n, l, j2), occ in jshells.items()]
+    out.sort(key=lambda s: (s.n, s.l, s.j2))
+    n_el = sum(s.occupation for s in out)
+    if n_el <= _TOL:
+        raise ConfigurationError(f"configuration '{text}' has no electrons")
+    if abs(n_el - (el.Z - charge)) > 1e-8:
+        raise ConfigurationError(
+            f"configuration '{text}' holds {_fmt(n_el)} electrons but {el.symbol} with charge "
+            f"{charge:+g} has {_fmt(el.Z - charge)}"
+        )
+    return DiracConfiguration(tuple(out))

@@ -15,6 +15,11 @@ def register(sub) -> None:
     p.add_argument("--restricted", action="store_true", help="spin-restricted (spin-averaged) instead of Hund's-rule polarized")
     p.add_argument("--spin", type=int, default=None, metavar="2S", help="fix N_up - N_down (overrides Hund's rule)")
     p.add_argument("--config", default=None, help="configuration, e.g. '[Ar] 3d7 4s1' or '[He] 2s2 2p(3,1)'")
+    p.add_argument("--relativity", choices=("none", "scalar", "x2c", "dirac"), default="none",
+                   help="Hamiltonian: none (Schroedinger), scalar (Koelling-Harmon; LDA/GGA), x2c (spin-free "
+                        "X2C-1e; every functional), dirac (four-component, j-resolved; LDA/GGA, restricted)")
+    p.add_argument("--nucleus", choices=("point", "gaussian"), default="point",
+                   help="nuclear charge model (gaussian: Visscher-Dyall radius, ks1d.nuclei)")
     p.add_argument("--precision", choices=("low", "normal", "high"), default="normal")
     p.add_argument("--no-error-estimate", action="store_true", help="skip the refined-mesh error estimate")
     p.add_argument("--damping", type=float, default=None,
@@ -33,13 +38,13 @@ def run(args) -> int:
         from ..errors import SpinError
 
         raise SpinError("--restricted and --spin contradict each other; give one of them")
-    spin = "restricted" if args.restricted else ("polarized" if args.spin is None else args.spin)
+    spin = "restricted" if args.restricted else (None if args.spin is None else args.spin)
     scf = {k: v for k, v in (("damping", args.damping), ("max_iterations", args.max_iterations)) if v is not None}
     bar = ProgressLine("atom", enabled=not args.quiet)
     try:
         res = solve_atom(args.element, xc=args.xc, charge=args.charge, spin=spin, config=args.config,
                          precision=args.precision, estimate_error=not args.no_error_estimate, scf=scf,
-                         progress=bar.scf)
+                         relativity=args.relativity, nucleus=args.nucleus, progress=bar.scf)
     finally:
         bar.close()
     if args.qcschema:
@@ -60,6 +65,7 @@ def format_atom(res) -> str:
     f = res.functional
     lines = [
         f"{res.element} (Z = {res.Z}), charge {res.charge:+g}, {res.spin}",
+        f"hamiltonian    relativity {res.relativity}, {res.nucleus} nucleus",
         f"configuration  {res.configuration}",
         f"functional     {res.xc}  [{f['libxc']}, {f['kind']}]",
         f"SCF            {'converged' if res.converged else 'NOT converged'} in {res.iterations} iterations",

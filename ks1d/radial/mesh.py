@@ -77,6 +77,23 @@ def _reference_element(p: int, nq: int):
     return nodes, xq, wq, lagrange_basis(nodes, xq)
 
 
+@lru_cache(maxsize=32)
+def _reference_second_derivatives(p: int, nq: int) -> np.ndarray:
+    """Second ξ-derivatives L″_j of the shape functions at the Gauss–Legendre points, (nq, p+1)."""
+    nodes = gauss_lobatto_nodes(p)
+    xq, _ = _leg.leggauss(nq)
+    C = np.linalg.inv(_leg.legvander(nodes, p))
+    return _leg.legval(xq, _leg.legder(C, 2)).T
+
+
+@lru_cache(maxsize=32)
+def _quadrature_differentiation(nq: int) -> np.ndarray:
+    """D (nq, nq): ξ-derivative at the Gauss–Legendre points of the polynomial through values there."""
+    xq, _ = _leg.leggauss(nq)
+    C = np.linalg.inv(_leg.legvander(xq, nq - 1))
+    return _leg.legval(xq, _leg.legder(C)).T
+
+
 def lagrange_basis(nodes: np.ndarray, x: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     """Values L_j(x) and derivatives L′_j(x) of the Lagrange polynomials on ``nodes``.
 
@@ -118,6 +135,8 @@ class RadialMesh:
         self.w = half[:, None] * wq[None, :]
         self.phi = L
         self.dphi = dL[None, :, :] / half[:, None, None]
+        self._half = half
+        self._nq = nq
         self.node_r = mid[:, None] + half[:, None] * nodes[None, :]
         # global numbering: node k of element e is e*p + k; drop 0 and the last
         raw = np.arange(self.nel)[:, None] * p + np.arange(p + 1)[None, :]
@@ -147,6 +166,21 @@ class RadialMesh:
         flat, mask, _ = self._scatter
         out = np.bincount(flat, weights=blocks[mask], minlength=self.size * self.size)
         return out.reshape(self.size, self.size)
+
+    @cached_property
+    def _band_scatter(self):
+        """Flat indices into the (2p+1, size) LAPACK band storage (ab[p + i − j, j] = a_ij) of element blocks."""
+        p = self.order
+        ii = np.broadcast_to(self.dof[:, :, None], (self.nel, p + 1, p + 1))
+        jj = np.broadcast_to(self.dof[:, None, :], ii.shape)
+        mask = (ii >= 0) & (jj >= 0)
+        return (p + ii[mask] - jj[mask]) * self.size + jj[mask], mask
+
+    def assemble_banded(self, blocks: np.ndarray) -> np.ndarray:
+        """Sum element blocks (nel, p+1, p+1) into LAPACK band storage (2p+1, size) of bandwidth p."""
+        flat, mask = self._band_scatter
+        n = (2 * self.order + 1) * self.size
+        return np.bincount(flat, weights=blocks[mask], minlength=n).reshape(2 * self.order + 1, self.size)
 
     def assemble_sparse(self, blocks: np.ndarray):
         """Sum element blocks into a sparse (CSR) global matrix of bandwidth p."""
@@ -198,6 +232,48 @@ class RadialMesh:
         du[outside] = 0.0
         return u.reshape(r.shape), du.reshape(r.shape)
 
+    @cached_property
+    def d2phi(self) -> np.ndarray:
+        """Second r-derivatives φ″ of the shape functions at the quadrature points, (nel, nq, p+1).
+
+        Used where a derivative of a first derivative is needed: the gradient of the
+        small component of Dirac orbitals (GGA); the shape functions are polynomials,
+        so these are exact.
+        """
+        d2 = _reference_second_derivatives(self.order, self._nq)
+        return d2[None, :, :] / (self._half**2)[:, None, None]
+
+    def second_derivative(self, c: np.ndarray) -> np.ndarray:
+        """u″ at the quadrature points for coefficient vector(s) c (shapes as :meth:`values`)."""
+        loc = self.local_coefficients(c)
+        if loc.ndim == 2:
+            return np.einsum("eqj,ej->eq", self.d2phi, loc)
+        return np.einsum("eqj,ejk->keq", self.d2phi, loc)
+
+    def differentiate_quadrature(self, f: np.ndarray) -> np.ndarray:
+        """df/dr at the quadrature points of a function known there, element by element.
+
+        Each element's values are interpolated by the polynomial of degree nq − 1 through
+        its nq Gauss–Legendre points, which is differentiated (spectral accuracy for a
+        function smooth inside each element; no continuity across boundaries is assumed).
+        """
+        D = _quadrature_differentiation(self._nq)
+        return np.einsum("qk,...ek->...eq", D, f) / self._half[:, None]
+
+    def interpolate_quadrature(self, f: np.ndarray, r: np.ndarray) -> np.ndarray:
+        """Values at radii r of a function known at the quadrature points (element-wise polynomial
+        interpolation through the Gauss–Legendre points; 0 beyond r_max)."""
+        r = np.asarray(r, dtype=float)
+        flat = r.ravel()
+        e = np.clip(np.searchsorted(self.boundaries, flat, side="right") - 1, 0, self.nel - 1)
+        left, right = self.boundaries[e], self.boundaries[e + 1]
+        xi = np.clip((flat - 0.5 * (left + right)) / (0.5 * (right - left)), -1.0, 1.0)
+        xq, _ = _leg.leggauss(self._nq)
+        L, _ = lagrange_basis(xq, xi)
+        out = np.sum(L * np.asarray(f)[e], axis=1)
+        out[flat > self.r_max] = 0.0
+        return out.reshape(r.shape)
+
     def integrate(self, f: np.ndarray) -> float:
         """∫₀^{r_max} f(r) dr for f given at the quadrature points."""
         return float(np.sum(self.w * f))
@@ -210,6 +286,10 @@ class RadialMesh:
     def derivative_blocks(self, f: np.ndarray) -> np.ndarray:
         """Blocks ∫ f φ′_i φ′_j dr per element."""
         return np.einsum("eqi,eq,eqj->eij", self.dphi, self.w * f, self.dphi, optimize=True)
+
+    def pair_blocks(self, a: np.ndarray, f: np.ndarray, b: np.ndarray) -> np.ndarray:
+        """Blocks ∫ f a_i b_j dr per element for local function sets a, b of shape (nel, nq, p+1)."""
+        return np.einsum("eqi,eq,eqj->eij", a, self.w * f, b, optimize=True)
 
     def mixed_blocks(self, f: np.ndarray) -> np.ndarray:
         """Blocks ∫ f (φ′_i φ_j + φ_i φ′_j) dr per element."""

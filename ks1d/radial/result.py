@@ -22,9 +22,14 @@ class Orbital:
     spin: str
     occupation: float
     energy: float
+    kappa: int | None = None  # Dirac atoms: κ = −(l+1) for j = l+½, +l for j = l−½
+    j: float | None = None  # Dirac atoms: total angular momentum
 
     @property
     def label(self) -> str:
+        """'6s', or with j (Dirac atoms) '6p1/2'."""
+        if self.j is not None:
+            return f"{self.n}{L_LETTERS[self.l]}{int(round(2 * self.j))}/2"
         return f"{self.n}{L_LETTERS[self.l]}"
 
     @property
@@ -33,7 +38,14 @@ class Orbital:
 
     def to_dict(self) -> dict:
         return {"n": self.n, "l": self.l, "label": self.label, "spin": self.spin,
-                "occupation": self.occupation, "energy": self.energy}
+                "occupation": self.occupation, "energy": self.energy, "kappa": self.kappa, "j": self.j}
+
+
+def _orbital_key(key: tuple) -> str:
+    """'2p_alpha', or for Dirac atoms '2p1/2_both'."""
+    n, l, s = key[:3]
+    j = f"{key[3]}/2" if len(key) > 3 else ""
+    return f"{n}{L_LETTERS[l]}{j}_{s}"
 
 
 @dataclass(frozen=True, eq=False)
@@ -43,8 +55,11 @@ class RadialData:
     ``r``/``weights`` are the quadrature points (flattened) and weights (dr);
     ``density`` (ns, N) spin densities ρ_σ(r) in bohr⁻³ (ns = 1: total);
     ``v_hartree`` and ``v_xc`` (ns, N) potentials in hartree; ``orbitals``
-    maps (n, l, spin) to u(r) = r R(r) at the points.  ``mesh`` and
-    ``coefficients`` allow evaluation anywhere through :meth:`density_at`.
+    maps (n, l, spin) to u(r) = r R(r) at the points (Dirac atoms: (n, l, spin, 2j),
+    large component).  ``mesh`` and ``coefficients`` allow evaluation anywhere
+    through :meth:`density_at`.  Relativistic atoms whose density includes a small
+    component (scalar, Dirac) keep it in ``small``: the same keys → u_S at the
+    quadrature points (nel, nq), interpolated element-wise by :meth:`density_at`.
     """
 
     r: np.ndarray
@@ -55,6 +70,7 @@ class RadialData:
     orbitals: dict
     mesh: RadialMesh
     coefficients: dict  # (n, l, spin) -> (coefficient vector, occupation)
+    small: dict | None = None  # same keys -> small component at the quadrature points
 
     def density_at(self, r: np.ndarray) -> np.ndarray:
         """Spin densities (ns, len(r)) at arbitrary radii (0 beyond r_max)."""
@@ -62,9 +78,11 @@ class RadialData:
         spins = sorted({k[2] for k in self.coefficients})
         out = np.zeros((len(spins), r.size))
         rr = np.maximum(r, 1e-300)
-        for (n, l, s), (c, occ) in self.coefficients.items():
+        for key, (c, occ) in self.coefficients.items():
             u, _ = self.mesh.values_at(c, rr)
-            out[spins.index(s)] += shell_density(rr, u, occ)
+            out[spins.index(key[2])] += shell_density(rr, u, occ)
+            if self.small is not None and key in self.small:
+                out[spins.index(key[2])] += shell_density(rr, self.mesh.interpolate_quadrature(self.small[key], rr), occ)
         return out
 
     def to_dict(self) -> dict:
@@ -74,7 +92,7 @@ class RadialData:
             "density": self.density.tolist(),
             "v_hartree": self.v_hartree.tolist(),
             "v_xc": self.v_xc.tolist(),
-            "orbitals": {f"{n}{L_LETTERS[l]}_{s}": u.tolist() for (n, l, s), u in self.orbitals.items()},
+            "orbitals": {_orbital_key(k): u.tolist() for k, u in self.orbitals.items()},
         }
 
 
@@ -89,7 +107,11 @@ class AtomResult:
     solution of any functional; ``gauss_law_error`` is |∫ρ − N|; ``error_estimate``
     estimates the numerical error of ``total_energy`` (refined-mesh difference plus the
     last SCF energy change; None when not requested), ``mesh_error_estimate`` is its
-    refined-mesh part alone.
+    refined-mesh part alone.  ``relativity`` ("none", "scalar", "x2c", "dirac") and
+    ``nucleus`` ("point", "gaussian") name the Hamiltonian (see :func:`ks1d.radial.scf.solve_atom`);
+    for "scalar" and "x2c" the scaling virial theorem has no simple form and
+    ``virial_residual`` is NaN (null in JSON); for "dirac" it is the Dirac form
+    (⟨cα·p⟩ − ∫ρ Z(r)/r + E_H + dE_xc[ρ_λ]/dλ)/|E|.
     """
 
     element: str
@@ -118,6 +140,8 @@ class AtomResult:
     version: str
     timings: dict = field(default_factory=dict)
     radial: RadialData | None = None
+    relativity: str = "none"
+    nucleus: str = "point"
 
     @property
     def homo(self) -> Orbital:
@@ -161,6 +185,8 @@ class AtomResult:
             "settings": dict(self.settings),
             "version": self.version,
             "timings": dict(self.timings),
+            "relativity": self.relativity,
+            "nucleus": self.nucleus,
         }
         if include_radial and self.radial is not None:
             d["radial"] = self.radial.to_dict()

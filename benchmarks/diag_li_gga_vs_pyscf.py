@@ -25,7 +25,8 @@ from pyscf.dft import libxc
 
 import ks1d
 from ks1d.occupations import build_configuration
-from ks1d.radial.scf import PRECISION, AtomicProblem
+from ks1d.radial.problem import AtomicProblem
+from ks1d.radial.scf import PRECISION
 from ks1d.xc import resolve_functional
 
 

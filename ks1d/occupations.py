@@ -271,6 +271,9 @@ def _ionise(shells: dict, charge: float, label: str) -> dict:
         else:
             order = _madelung_order()
             last = max((order.index(k) for k in shells), default=-1)
+            if last + 1 >= len(order):
+                raise ConfigurationError(f"charge {charge:+g} puts more electrons on {label} than the sub-shells up "
+                                         f"to {order[-1][0]}{L_LETTERS[order[-1][1]]} hold")
             k = order[last + 1]
         cap = 2 * (2 * k[1] + 1)
         give = min(-remaining, cap - shells.get(k, 0.0))
@@ -280,8 +283,7 @@ def _ionise(shells: dict, charge: float, label: str) -> dict:
 
 
 def _checked_charge(el, charge) -> float:
-    """The charge as a float; ConfigurationError for a non-number, a non-finite value, no electrons
-    left, or an anion beyond MIN_CHARGE."""
+    """The charge as a float; ConfigurationError for a non-number, a non-finite value or no electrons left."""
     try:
         charge = float(charge)
     except (TypeError, ValueError):
@@ -290,11 +292,16 @@ def _checked_charge(el, charge) -> float:
         raise ConfigurationError(f"charge must be a finite number, got {charge}")
     if el.Z - charge <= _TOL:
         raise ConfigurationError(f"charge {charge:+g} leaves {el.symbol} without electrons")
+    return charge
+
+
+def check_anion_charge(symbol: str, charge: float) -> None:
+    """Refuse interacting atomic anions beyond MIN_CHARGE (they are unbound; the box would decide)."""
     if charge < MIN_CHARGE:
         raise ConfigurationError(
             f"charge {charge:+g} is below {MIN_CHARGE:+g}: ks1d solves atomic anions up to {-MIN_CHARGE:g} extra "
-            "electrons (in a confinement box); more highly charged atomic anions are unbound")
-    return charge
+            f"electrons (in a confinement box); more highly charged atomic anions such as {symbol}{charge:+g} "
+            "are unbound")
 
 
 def build_configuration(Z: int, charge: float = 0.0, spin: str | int = "polarized",

@@ -44,7 +44,7 @@ from .mesh import MeshSpec
 from .poisson import hartree_energy
 from .relativity import (SPEED_OF_LIGHT, j2_of_kappa, l_of_kappa, positive_energy_states, relativistic_kinetic,
                          rkb_matrices, small_basis_dirac, small_gram_dirac)
-from .scf import AtomicProblem, thomas_fermi_potential
+from .problem import AtomicProblem, thomas_fermi_potential
 
 
 class KappaChannel:

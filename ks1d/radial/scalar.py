@@ -56,7 +56,7 @@ from .eigen import banded, sign_changes
 from .mesh import MeshSpec
 from .poisson import hartree_energy
 from .relativity import SPEED_OF_LIGHT, sommerfeld_energy
-from .scf import AtomicProblem, thomas_fermi_potential
+from .problem import AtomicProblem, thomas_fermi_potential
 
 #: relative self-consistency of each orbital energy with its own M(ε)
 EPS_TOLERANCE = 1e-12

@@ -25,7 +25,7 @@ def register(subparsers) -> None:
     p.add_argument("--xc", default="pbe", help="functional of the IP/EA checks (default: pbe)")
     p.add_argument("--group", action="append", metavar="NAME", default=None,
                    help="run only this group (repeatable): nist, hf_limit, radial_pyscf, gaussian_pyscf, "
-                        "ip_pyscf, ip_ea")
+                        "ip_pyscf, ip_ea, relativity")
     p.add_argument("--json", action="store_true", help="print one JSON object with a 'checks' list")
     p.add_argument("--quiet", action="store_true", help="no progress lines on stderr")
     p.set_defaults(func=run, level="quick")

@@ -34,6 +34,13 @@ Which species enter the IP/EA checks, and why:
   empty per spin: the radial solver's fractional-occupation exchange of open
   shells lies ~0.1 Ha above any determinant (see ks1d.radial.scf).
 
+``relativity``    relativistic radial atoms: Dirac (and, for l = 0, Koelling–Harmon)
+                  hydrogen-like levels of Hg⁷⁹⁺ vs Sommerfeld's formula (1e-10
+                  relative); scalar-relativistic PBE ΔSCF IPs of Au (full: and
+                  Hg) vs NIST ASD within 0.5 eV; full: the radial X2C-1e HF
+                  energy of Ar below pyscf's sfX2C-1e in a large uncontracted
+                  basis by < 2 µHa.
+
 ``quick`` is a subset sized to run in well under a minute on a small machine;
 ``full`` runs everything.
 """
@@ -342,6 +349,94 @@ def _ip_ea(level: str, xc: str) -> list[CheckResult]:
     return out
 
 
+def _sommerfeld(Z: float, n: int, kappa: int, c: float) -> float:
+    """Dirac energy of a point-nucleus hydrogen-like level without the rest mass (Sommerfeld's
+    fine-structure formula; C. G. Darwin, Proc. R. Soc. A 118, 654 (1928); W. Gordon, Z. Phys. 48, 11
+    (1928)): E = c²[1 + (Z/c / (n − |κ| + √(κ² − Z²/c²)))²]^(−½) − c², written out here, apart from the
+    solver's own copy."""
+    import math
+
+    g = math.sqrt(kappa * kappa - (Z / c) ** 2)
+    return c * c * (1.0 / math.sqrt(1.0 + (Z / c / (n - abs(kappa) + g)) ** 2) - 1.0)
+
+
+def _relativity(level: str) -> list[CheckResult]:
+    """Relativistic radial atoms: hydrogen-like levels vs Sommerfeld, heavy-atom IPs vs NIST ASD,
+    and (full) the radial X2C-1e energy vs pyscf's spin-free X2C-1e in a large uncontracted basis."""
+    import math
+
+    from scipy import constants
+
+    from ..radial.mesh import MeshSpec
+    from ..radial.scf import solve_atom
+
+    c = 1.0 / constants.fine_structure
+    out = []
+    Z = 80
+    src = "Sommerfeld's fine-structure formula (Darwin 1928; Gordon 1928), c = 1/alpha (CODATA, scipy)"
+    mesh = MeshSpec(n_elements=40, order=12, r_first=1e-5, r_max=60.0)
+    for relativity, config, levels in (("dirac", "1s1/2(1) 2s1/2(1) 2p1/2(1) 2p3/2(1)",
+                                        ((1, -1), (2, -1), (2, 1), (2, -2))),
+                                       ("scalar", "1s1 2s1", ((1, -1), (2, -1)))):
+        t0 = time.perf_counter()
+        try:
+            res = solve_atom(Z, charge=Z - len(levels), config=config, spin="restricted", relativity=relativity,
+                             electron_interaction=False, estimate_error=False, mesh=mesh)
+        except Exception as exc:
+            out.append(_failed(f"{relativity} hydrogen-like Hg79+ levels", "relativity", exc, "hartree", src,
+                               0.0, time.perf_counter() - t0))
+            continue
+        dt = time.perf_counter() - t0
+        for o, (n, kappa) in zip(sorted(res.orbitals, key=lambda o: (o.n, o.l, o.j or 0)), levels, strict=True):
+            exact = _sommerfeld(Z, n, kappa, c)
+            label = o.label if relativity == "dirac" else f"{o.label} (= Dirac {o.n}s1/2 for l = 0)"
+            out.append(_compare(f"{relativity} hydrogen-like Hg79+ {label}", "relativity", o.energy, exact,
+                                1e-10 * abs(exact), "hartree", src, "tolerance 1e-10 relative", dt))
+            dt = 0.0
+    # the issue's criterion (Au and Hg within 0.5 eV with PBE); Pt, an open-5d atom, carries the spherical
+    # averaging bias on top and is shown by benchmarks/bench_radial_relativity_ip.py instead
+    ip_atoms = ("Au",) if level == "quick" else ("Au", "Hg")
+    for sym in ip_atoms:
+        ref = reference_value("ionisation_energy", sym)
+        name = f"scalar-relativistic PBE IP {sym}"
+        t0 = time.perf_counter()
+        try:
+            e0 = solve_atom(sym, xc="pbe", relativity="scalar", estimate_error=False).total_energy
+            e1 = solve_atom(sym, xc="pbe", charge=1, relativity="scalar", estimate_error=False).total_energy
+        except Exception as exc:
+            out.append(_failed(name, "relativity", exc, "eV", ref.source, 0.5, time.perf_counter() - t0))
+            continue
+        out.append(_compare(name, "relativity", (e1 - e0) * EV, ref.value, 0.5, "eV",
+                            f"experiment: {ref.source}",
+                            "ΔSCF, radial, spin-polarized; tolerance 0.5 eV (non-relativistic PBE is 1.5-2 eV low "
+                            "for the 5d/6s atoms)", time.perf_counter() - t0))
+    if level == "full":
+        from pyscf import gto, scf
+        from pyscf.data import nist
+
+        name = "X2C-1e HF Ar: radial vs pyscf sfX2C-1e"
+        src = (_PYSCF_SOURCE.format(version=_pyscf_version()) + ", uncontracted even-tempered basis (ratio 1.8, "
+               "s 0.05-1e10, p 0.05-1e6), point nucleus, pyscf's speed of light")
+        t0 = time.perf_counter()
+        try:
+            radial = solve_atom("Ar", xc="hf", spin="restricted", relativity="x2c", speed_of_light=nist.LIGHT_SPEED,
+                                estimate_error=False).total_energy
+            basis = []
+            for l, (lo, hi) in enumerate(((0.05, 1e10), (0.05, 1e6))):
+                n = int(math.ceil(math.log(hi / lo) / math.log(1.8))) + 1
+                basis += [[l, [lo * 1.8**k, 1.0]] for k in range(n)]
+            mf = scf.RHF(gto.M(atom="Ar 0 0 0", basis={"Ar": basis}, verbose=0)).sfx2c1e()
+            mf.conv_tol = 1e-11
+            e_ref = float(mf.kernel())
+        except Exception as exc:
+            out.append(_failed(name, "relativity", exc, "hartree", src, 2e-6, time.perf_counter() - t0))
+        else:
+            out.append(_compare(name, "relativity", radial, e_ref, 2e-6, "hartree", src,
+                                "variational bound: radial must lie below the Gaussian value, within 2 µHa",
+                                time.perf_counter() - t0, lower=-2e-6, upper=1e-8))
+    return out
+
+
 GROUPS: dict[str, Callable] = {
     "nist": lambda level, xc: _nist(level),
     "hf_limit": lambda level, xc: _hf_limit(level),
@@ -349,6 +444,7 @@ GROUPS: dict[str, Callable] = {
     "gaussian_pyscf": lambda level, xc: _gaussian_pyscf(level),
     "ip_pyscf": lambda level, xc: _ip_pyscf(level),
     "ip_ea": _ip_ea,
+    "relativity": lambda level, xc: _relativity(level),
 }
 
 

@@ -63,7 +63,7 @@ def test_quick_check_json_is_well_formed(quick_json):
         assert math.isclose(c["deviation"], c["value"] - c["reference"], rel_tol=0, abs_tol=1e-12)
         assert c["tolerance"] > 0
     groups = {c["group"] for c in data["checks"]}
-    assert groups == {"nist", "hf_limit", "radial_pyscf", "gaussian_pyscf", "ip_pyscf", "ip", "ea"}
+    assert groups == {"nist", "hf_limit", "radial_pyscf", "gaussian_pyscf", "ip_pyscf", "ip", "ea", "relativity"}
 
 
 def test_table_output_lists_every_check(capsys):

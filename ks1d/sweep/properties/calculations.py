@@ -1,7 +1,8 @@
-"""Single solver calls as the sweep's properties use them.
+"""Solver calls as the sweep's properties use them.
 
 Each function calls a solver (:func:`ks1d.radial.scf.solve_atom` or
-:func:`ks1d.gaussian.scf.solve_molecule`) and returns a small JSON-ready summary.  A
+:func:`ks1d.gaussian.scf.solve_molecule`), or a fixed sequence of its calls (the
+bond-length search of a diatomic), and returns a small JSON-ready summary.  A
 per-process memo keeps the summaries of recent calls so that, e.g., the H
 atom shared by every hydride's atomization energy is solved once per worker;
 a memoised call returns exactly what the first call returned, so stored
@@ -12,6 +13,8 @@ from __future__ import annotations
 import time
 from collections import OrderedDict
 from typing import Any
+
+import numpy as np
 
 from ..engine.jobs import canonical_json
 
@@ -95,3 +98,57 @@ def molecule(xyz: str, xc: str, basis: str, charge: int = 0, multiplicity: int =
         return _summary(result, None)
 
     return _memoised("molecule", args, compute)
+
+
+def _gradient_point(result, r_bohr: float, slope: float, seconds: float) -> dict[str, Any]:
+    from ... import units
+
+    g = np.asarray(result.gradient)
+    return {**_summary(result, None), "r_angstrom": r_bohr * units.BOHR_TO_ANGSTROM, "dE_dR": slope,
+            "translation_defect": float(np.abs(g.sum(axis=0)).max()), "seconds": seconds}
+
+
+def diatomic_minimum(sym_a: str, sym_b: str, r_start_angstrom: float, xc: str, basis: str, multiplicity: int,
+                     options: dict[str, Any] | None = None) -> tuple[dict[str, Any], float]:
+    """r_e, k and E(r_e) of a diatomic from analytic energies and gradients (:mod:`.bondmin`).
+
+    Each sample is one :func:`~ks1d.gaussian.scf.solve_molecule` with ``gradient=True`` on the
+    molecule along z, its SCF restarted from the previous sample's density (``start=``).  The whole
+    search is one memoised call: it is deterministic in its arguments, so a memo hit returns exactly
+    what the search returned.  Returns (summary, seconds spent; 0 when memoised).
+    """
+    opts = dict(options or {})
+    args = {"atoms": [sym_a, sym_b], "r_start": r_start_angstrom, "xc": xc, "basis": basis,
+            "multiplicity": multiplicity, "options": opts}
+
+    def compute():
+        from ... import elements, units
+        from ...errors import CalculationError
+        from ...gaussian.geometry import Geometry
+        from ...gaussian.scf import solve_molecule
+        from ...results import split_scf_options
+        from .bondmin import bond_minimum
+
+        scf, rest = split_scf_options(opts)
+        numbers = (elements.atomic_number(sym_a), elements.atomic_number(sym_b))
+        points: list[dict[str, Any]] = []
+        last: list[Any] = [None]
+
+        def evaluate(r: float) -> tuple[float, float]:
+            t0 = time.perf_counter()
+            geom = Geometry((sym_a, sym_b), numbers, np.array([[0.0, 0.0, -0.5 * r], [0.0, 0.0, 0.5 * r]]))
+            res = solve_molecule(geom, basis=basis, xc=xc, multiplicity=multiplicity, scf=scf, gradient=True,
+                                 start=last[0], **rest)
+            if not res.converged:
+                raise CalculationError(f"the SCF at R = {r * units.BOHR_TO_ANGSTROM:.5f} A did not converge")
+            last[0] = res
+            g = np.asarray(res.gradient)
+            slope = 0.5 * float(g[1, 2] - g[0, 2])  # dE/dR = ½ (∇_B E − ∇_A E)·u, u = +z
+            points.append(_gradient_point(res, r, slope, time.perf_counter() - t0))
+            return float(res.total_energy), slope
+
+        found = bond_minimum(evaluate, r_start_angstrom * units.ANGSTROM_TO_BOHR)
+        return {"minimum": found.to_dict(), "points": points}
+
+    return _memoised("diatomic_minimum", args, compute)
+

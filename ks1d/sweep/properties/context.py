@@ -81,6 +81,28 @@ class Context:
         self.record(record, dt)
         return summary
 
+    def bond_minimum(self, label: str, r_start: float, multiplicity: int) -> dict[str, Any]:
+        """The minimum of E(R) of this diatomic from analytic gradients (:func:`.calculations.diatomic_minimum`).
+
+        Every energy-and-gradient evaluation is recorded as one solver call, labelled
+        ``"<label> at R = … A (energy and gradient)"``; an exception leaving it names the step.
+        """
+        s = self.system
+        sym_a, sym_b = s.symbols
+        basis = self.settings["basis"]
+        try:
+            summary, dt = calculations.diatomic_minimum(sym_a, sym_b, r_start, self.functional, basis, multiplicity,
+                                                        options=self.settings.get("molecule_options"))
+        except Exception as exc:
+            name_step(exc, f"{label}: bond-length search")
+            raise
+        for point in summary["points"]:
+            call = {k: v for k, v in point.items() if k != "seconds"}
+            self.record({"label": f"{label} at R = {point['r_angstrom']:.5f} A (energy and gradient)",
+                         "solver": "gaussian", "species": s.name, "charge": s.charge, "multiplicity": multiplicity,
+                         "basis": basis, **call}, point["seconds"] if dt else 0.0)
+        return summary["minimum"]
+
     def record(self, call: dict[str, Any], seconds: float) -> None:
         """Add one solver call's summary (and the seconds it took) to the job's record."""
         self.calculations.append(call)

@@ -303,8 +303,7 @@ def reference_for(quantity: str, system: System, functional: str | None = None,
             ref = g2_1_atomization_energy(system.key)
     elif quantity in _DIATOMIC_REFERENCES:
         if system.is_diatomic:
-            key = system.key if system.dataset in ("g2-1", "diatomics") else _formula(system)
-            ref = _from_loader(_DIATOMIC_REFERENCES[quantity], key, quantity)
+            ref = _from_loader(_DIATOMIC_REFERENCES[quantity], _diatomic_key(system), quantity)
     elif quantity == "spin_splitting":
         if system.dataset == "g2-1-pair":
             ref = g2_1_singlet_triplet(system.key)
@@ -312,6 +311,10 @@ def reference_for(quantity: str, system: System, functional: str | None = None,
         if neutral_atom and functional and settings.get("atoms", "radial") == "radial":
             ref = _total_energy_reference(system.symbol, functional, settings.get("spin", "polarized"))
     return _in_unit(ref, quantity)
+
+
+def _diatomic_key(system: System) -> str:
+    return system.key if system.dataset in ("g2-1", "diatomics") else _formula(system)
 
 
 def _total_energy_reference(symbol: str, functional: str, spin: str) -> Reference | None:

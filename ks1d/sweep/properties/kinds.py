@@ -12,7 +12,8 @@ spin-polarized ground state unless noted; units from :mod:`ks1d.quantities`):
 * ``ionisation_potential``  IP = E(X⁺) − E(X)                          (eV)
 * ``electron_affinity``     EA = E(X) − E(X⁻)                          (eV)
 * ``atomization_energy``    D_e = Σ_atoms E(A) − E(M)                  (kcal/mol)
-* ``diatomic_curve``        r_e and ω_e from a polynomial fit to E(R)  (Å, cm⁻¹)
+* ``diatomic_curve``        r_e and ω_e = √(E″(r_e)/μ) from analytic gradients (Å, cm⁻¹)
+* ``diatomic_curve_scan``   the same from an energy scan and a quartic fit (the earlier method)
 * ``spin_splitting``        E(state 2) − E(state 1) of a spin-state pair (eV)
 * ``sd_promotion``          E(dⁿ⁺¹s¹) − E(dⁿs²) of a transition-metal atom (eV)
 * ``homo_vs_ip``            −ε_HOMO, to compare with the experimental IP (eV)
@@ -174,8 +175,10 @@ KINDS: dict[str, PropertyKind] = {
         PropertyKind("atomization_energy", ("atomization_energy",),
                      ("atoms", "basis", "molecule_options", "precision", "spin", "atom_options"),
                      _molecule_only, _atomization, 4.6, "sum of atom energies minus molecule energy"),
-        PropertyKind("diatomic_curve", ("bond_length", "harmonic_frequency"), _SCAN_SETTINGS, _diatomic_only,
-                     _gaussian, 22.0, "bond length and harmonic frequency from an energy scan"),
+        PropertyKind("diatomic_curve", ("bond_length", "harmonic_frequency"), _MOL_SETTINGS, _diatomic_only,
+                     _gaussian, 8.0, "bond length and harmonic frequency from analytic gradients"),
+        PropertyKind("diatomic_curve_scan", ("bond_length", "harmonic_frequency"), _SCAN_SETTINGS, _diatomic_only,
+                     _gaussian, 22.0, "bond length and harmonic frequency from an energy scan and a quartic fit"),
         PropertyKind("spin_splitting", ("spin_splitting",), _MOL_SETTINGS, _pair_only, _gaussian, 4.2,
                      "E(second multiplicity) - E(first multiplicity)"),
         PropertyKind("sd_promotion", ("sd_promotion",), ("precision", "spin", "atom_options", "atoms"), _sd_check,
@@ -192,8 +195,8 @@ KINDS: dict[str, PropertyKind] = {
         PropertyKind("basis_set_error", ("basis_set_error",), ("basis", "precision"), _neutral_atom_only,
                      _radial_and_basis, 2.0, "E(basis) - E(radial limit) of one atom"),
         PropertyKind("diatomic_survey", ("bond_length", "harmonic_frequency", "dissociation_energy"),
-                     _SCAN_SETTINGS, _diatomic_only, _gaussian, 24.0,
-                     "r_e, omega_e and D_0 = D_e - ZPE of a diatomic in a basis"),
+                     _MOL_SETTINGS, _diatomic_only, _gaussian, 10.0,
+                     "r_e, omega_e (analytic gradients) and D_0 = D_e - ZPE of a diatomic in a basis"),
     )
 }
 

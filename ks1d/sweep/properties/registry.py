@@ -7,6 +7,7 @@ solvers, cost); this module attaches their computations, each a function of a
 =====================  ==========================================
 total_energy … homo    :mod:`.basic`
 diatomic_curve         :func:`.diatomic.diatomic_curve`
+diatomic_curve_scan    :func:`.diatomic.diatomic_curve_scan`
 diatomic_survey        :func:`.diatomic.diatomic_survey`
 atom_survey(_basis)    :mod:`.atom_survey`
 basis_set_error        :func:`.atom_survey.basis_set_error`
@@ -32,6 +33,7 @@ COMPUTE: dict[str, Callable[[Context], dict[str, float]]] = {
     "electron_affinity": basic.electron_affinity,
     "atomization_energy": basic.atomization_energy,
     "diatomic_curve": diatomic.diatomic_curve,
+    "diatomic_curve_scan": diatomic.diatomic_curve_scan,
     "spin_splitting": basic.spin_splitting,
     "sd_promotion": basic.sd_promotion,
     "homo_vs_ip": basic.homo_vs_ip,

@@ -1,5 +1,5 @@
 """Diatomic r_e and ω_e from analytic gradients: the interpolation against analytic curves, the sweep kind
-against pyscf's analytic gradients computed now."""
+against pyscf's analytic gradients computed now, references against Huber & Herzberg."""
 from __future__ import annotations
 
 import math
@@ -11,7 +11,7 @@ from ks1d import units
 from ks1d.errors import CalculationError
 from ks1d.sweep.properties.bondmin import MAX_SAMPLES, bond_minimum, hermite_polynomial
 from ks1d.sweep.properties.curvefit import isotope_masses
-from ks1d.sweep.properties.datasets import diatomic
+from ks1d.sweep.properties.datasets import diatomic, reference_for
 from ks1d.sweep.properties.registry import run_property
 
 
@@ -90,3 +90,16 @@ def test_gradient_bond_length_and_frequency_match_pyscf(formula, xc, pyscf_xc):
     points = [c for c in out["calculations"] if "(energy and gradient)" in c["label"]]
     assert 3 <= len(points) <= 5 and all(abs(p["translation_defect"]) < 1e-10 for p in points)
 
+
+def test_zero_point_references_of_diatomics_are_half_the_huber_herzberg_omega():
+    # the harmonic zero-point energy of a diatomic is omega_e / 2; CO: omega_e = 2169.81 cm^-1 (Huber & Herzberg
+    # 1979, from memory, ks1d's data) -> 3.1019 kcal/mol with CODATA hc (scipy.constants)
+    from scipy import constants as c
+
+    zpe = reference_for("zero_point_energy", diatomic("CO"))
+    kcal = 0.5 * 2169.81 * 100 * c.h * c.c * c.N_A / 4184.0
+    assert zpe.value == pytest.approx(kcal, rel=1e-6) and zpe.unit == "kcal/mol" and zpe.from_memory
+    assert reference_for("lowest_harmonic_frequency", diatomic("CO")).value == 2169.81
+    from ks1d.sweep.properties.datasets import g2_1_molecule
+
+    assert reference_for("zero_point_energy", g2_1_molecule("H2O")) is None  # no harmonic data for polyatomics

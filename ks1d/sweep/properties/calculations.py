@@ -152,3 +152,74 @@ def diatomic_minimum(sym_a: str, sym_b: str, r_start_angstrom: float, xc: str, b
 
     return _memoised("diatomic_minimum", args, compute)
 
+
+#: optimisation results of this process (the full objects: the frequencies restart from the last SCF)
+_OPTIMISED: OrderedDict[str, Any] = OrderedDict()
+_OPTIMISED_SIZE = 8
+
+
+def optimisation(xyz: str, xc: str, basis: str, charge: int = 0, multiplicity: int = 1,
+                 options: dict[str, Any] | None = None) -> tuple[Any, float]:
+    """:func:`ks1d.optimize.optimize_molecule` from XYZ text (default criteria: max force 4.5e-4 Ha/bohr).
+
+    Memoised in this process as the full :class:`~ks1d.optimize.OptimizationResult` (the optimisation
+    is deterministic in its arguments).  Returns (result, seconds spent; 0 when memoised).
+    """
+    opts = dict(options or {})
+    key = "optimisation" + canonical_json({"xyz": xyz, "xc": xc, "basis": basis, "charge": charge,
+                                           "multiplicity": multiplicity, "options": opts})
+    hit = _OPTIMISED.get(key)
+    if hit is not None:
+        _OPTIMISED.move_to_end(key)
+        return hit, 0.0
+    from ...optimize import optimize_molecule
+    from ...results import split_scf_options
+
+    scf, rest = split_scf_options(opts)
+    t0 = time.perf_counter()
+    result = optimize_molecule(xyz, basis=basis, xc=xc, charge=charge, multiplicity=multiplicity, scf=scf, **rest)
+    dt = time.perf_counter() - t0
+    _OPTIMISED[key] = result
+    if len(_OPTIMISED) > _OPTIMISED_SIZE:
+        _OPTIMISED.popitem(last=False)
+    return result, dt
+
+
+def optimisation_summary(result) -> dict[str, Any]:
+    """The JSON-ready facts a sweep keeps of an optimisation."""
+    return {"total_energy": float(result.total_energy), "converged": bool(result.converged),
+            "iterations": int(result.timings["scf_iterations"]), "steps": len(result.history),
+            "max_force": result.max_force, "geometry": result.geometry,
+            "history": [s.to_dict() for s in result.history], "criteria": dict(result.criteria),
+            "multiplicity": _whole(result.result.multiplicity), "homo_energy": None, "configuration": None,
+            "error_estimate": None, "scf_last_change": None}
+
+
+def vibrations(xyz: str, xc: str, basis: str, charge: int = 0, multiplicity: int = 1,
+               options: dict[str, Any] | None = None) -> tuple[dict[str, Any], dict[str, Any], float, float]:
+    """Optimisation (:func:`optimisation`) then :func:`ks1d.frequencies.harmonic_frequencies` at its geometry.
+
+    The frequency run's first SCF restarts from the optimisation's last one.  Returns (optimisation
+    summary, harmonic summary, seconds of each; 0 when memoised).
+    """
+    opts = dict(options or {})
+    opt, t_opt = optimisation(xyz, xc, basis, charge, multiplicity, opts)
+    args = {"xyz": xyz, "xc": xc, "basis": basis, "charge": charge, "multiplicity": multiplicity, "options": opts}
+
+    def compute():
+        from ...frequencies import harmonic_frequencies
+        from ...results import split_scf_options
+
+        scf, rest = split_scf_options(opts)
+        h = harmonic_frequencies(opt.geometry, basis=basis, xc=xc, charge=charge, multiplicity=multiplicity,
+                                 scf=scf, start=opt.result, **rest)
+        return {"total_energy": float(h.reference.total_energy), "converged": True,
+                "iterations": int(h.reference.iterations), "wavenumbers": list(h.wavenumbers),
+                "reduced_masses": list(h.reduced_masses), "zero_point_energy": float(h.zero_point_energy),
+                "imaginary_modes": h.imaginary_modes, "linear": bool(h.linear), "max_force": float(h.max_force),
+                "step_bohr": float(h.step), "gradients": int(h.settings["gradients"]), "warnings": list(h.warnings),
+                "masses": h.settings["masses"], "multiplicity": _whole(h.reference.multiplicity),
+                "homo_energy": None, "configuration": None, "error_estimate": None, "scf_last_change": None}
+
+    harmonic, t_h = _memoised("vibrations", args, compute)
+    return optimisation_summary(opt), harmonic, t_opt, t_h

@@ -17,6 +17,10 @@ spin-polarized ground state unless noted; units from :mod:`ks1d.quantities`):
 * ``spin_splitting``        E(state 2) − E(state 1) of a spin-state pair (eV)
 * ``sd_promotion``          E(dⁿ⁺¹s¹) − E(dⁿs²) of a transition-metal atom (eV)
 * ``homo_vs_ip``            −ε_HOMO, to compare with the experimental IP (eV)
+* ``optimized_geometry``    largest change of a bond length r_opt − r_ref (Å) and of a bond angle (degrees)
+                            after a geometry optimisation from the system's geometry (:mod:`.geometry`)
+* ``vibrations``            harmonic zero-point energy ½Σħω (kcal/mol) and the lowest harmonic
+                            wavenumber (cm⁻¹, negative if imaginary) at the optimised geometry
 * ``atom_survey``, ``atom_survey_basis``, ``basis_set_error``, ``diatomic_survey``:
   the report's battery (:mod:`.atom_survey`, :mod:`.diatomic`)
 
@@ -35,6 +39,9 @@ from ...errors import InputError
 from ...quantities import QUANTITIES
 from .configurations import sd_configurations
 from .systems import System
+
+#: keywords of solve_molecule that ks1d.optimize_molecule and ks1d.harmonic_frequencies pass on
+GEOMETRY_SOLVER_OPTIONS = ("spin", "grid", "guess", "ao_cache_mb", "coulomb_fitting", "fit_switch")
 
 
 class SolverUse(NamedTuple):
@@ -123,6 +130,18 @@ def _sd_check(s: System) -> str | None:
     return None
 
 
+def _geometry_options(settings: dict[str, Any]) -> str | None:
+    """Geometry optimisations and frequencies pass only some solver keywords on (plus the SCF options)."""
+    from ...results import SCFOptions
+
+    allowed = set(GEOMETRY_SOLVER_OPTIONS) | set(SCFOptions.names())
+    bad = sorted(set(settings.get("molecule_options") or {}) - allowed)
+    if bad:
+        return (f"molecule_options {', '.join(map(repr, bad))} cannot be passed to a geometry optimisation "
+                f"(it takes {', '.join(GEOMETRY_SOLVER_OPTIONS)} and the SCF options)")
+    return None
+
+
 def _radial_atoms_only(settings: dict[str, Any]) -> str | None:
     if settings.get("atoms", "radial") != "radial":
         return "needs radial atoms (configurations are set on the radial solver); remove atoms = \"basis\""
@@ -197,6 +216,14 @@ KINDS: dict[str, PropertyKind] = {
         PropertyKind("diatomic_survey", ("bond_length", "harmonic_frequency", "dissociation_energy"),
                      _MOL_SETTINGS, _diatomic_only, _gaussian, 10.0,
                      "r_e, omega_e (analytic gradients) and D_0 = D_e - ZPE of a diatomic in a basis"),
+        PropertyKind("optimized_geometry", ("geometry_bond_deviation", "geometry_angle_deviation"), _MOL_SETTINGS,
+                     _molecule_only, _gaussian, 30.0,
+                     "geometry optimisation (analytic gradients); largest bond-length and angle change from the "
+                     "input geometry", settings_check=_geometry_options),
+        PropertyKind("vibrations", ("zero_point_energy", "lowest_harmonic_frequency"), _MOL_SETTINGS,
+                     _molecule_only, _gaussian, 120.0,
+                     "harmonic frequencies and zero-point energy at the optimised geometry",
+                     settings_check=_geometry_options),
     )
 }
 
@@ -209,6 +236,10 @@ PROPERTY_NAMES: dict[str, str] = {
     **{k: k for k in KINDS},
     "bond_length": "diatomic_curve",
     "harmonic_frequency": "diatomic_curve",
+    "optimised_geometry": "optimized_geometry",
+    "geometry": "optimized_geometry",
+    "harmonic_frequencies": "vibrations",
+    "zero_point_energy": "vibrations",
     "ionization_potential": "ionisation_potential",
     "ionisation_energy": "ionisation_potential",
     "ionization_energy": "ionisation_potential",

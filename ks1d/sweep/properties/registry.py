@@ -11,6 +11,8 @@ diatomic_curve_scan    :func:`.diatomic.diatomic_curve_scan`
 diatomic_survey        :func:`.diatomic.diatomic_survey`
 atom_survey(_basis)    :mod:`.atom_survey`
 basis_set_error        :func:`.atom_survey.basis_set_error`
+optimized_geometry     :func:`.geometry.optimized_geometry`
+vibrations             :func:`.geometry.vibrations`
 =====================  ==========================================
 
 :data:`REGISTRY` implements the engine's registry interface
@@ -21,7 +23,7 @@ from __future__ import annotations
 from collections.abc import Callable
 from typing import Any
 
-from . import atom_survey, basic, diatomic
+from . import atom_survey, basic, diatomic, geometry
 from .context import Context
 from .kinds import KINDS
 from .systems import System
@@ -41,6 +43,8 @@ COMPUTE: dict[str, Callable[[Context], dict[str, float]]] = {
     "atom_survey_basis": atom_survey.atom_survey_basis,
     "basis_set_error": atom_survey.basis_set_error,
     "diatomic_survey": diatomic.diatomic_survey,
+    "optimized_geometry": geometry.optimized_geometry,
+    "vibrations": geometry.vibrations,
 }
 if set(COMPUTE) != set(KINDS):  # pragma: no cover - a programming error, caught by any import
     raise RuntimeError(f"kinds without a computation or the reverse: {sorted(set(COMPUTE) ^ set(KINDS))}")

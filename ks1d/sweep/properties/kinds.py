@@ -61,7 +61,8 @@ class PropertyKind:
     ``check(system)`` says why a system does not suit the kind (None when it does);
     ``settings_check(settings)`` the same for the job's settings; ``solvers(system,
     settings)`` lists the solver calls a job makes (for the up-front checks of
-    :mod:`.checks`).  ``molecule_cost`` is the cost for a molecule when it differs.
+    :mod:`.checks`).  ``molecule_cost`` is the cost for a molecule when it differs; ``scale(system)``
+    multiplies the cost by how the job grows with the system (see :func:`_by_element`).
     """
 
     name: str
@@ -73,11 +74,11 @@ class PropertyKind:
     description: str = ""
     molecule_cost: float | None = None
     settings_check: Callable[[dict[str, Any]], str | None] | None = None
+    scale: Callable[[System], float] | None = None
 
     def cost_for(self, system: System) -> float:
-        if self.molecule_cost is not None and not system.is_atom:
-            return self.molecule_cost
-        return self.cost
+        base = self.molecule_cost if self.molecule_cost is not None and not system.is_atom else self.cost
+        return base * (self.scale(system) if self.scale is not None else 1.0)
 
 
 # ------------------------------------------------------------------ checks
@@ -148,6 +149,23 @@ def _radial_atoms_only(settings: dict[str, Any]) -> str | None:
     return None
 
 
+# ------------------------------------------------------------ cost scales
+def _by_element(exponent: float) -> Callable[[System], float]:
+    """Cost relative to oxygen, (Z/8)^exponent for the heaviest atom: a rule fitted to the job times of the
+    README report (def2-TZVP and aug-cc-pVTZ, Cu against O): radial atoms grow as Z^0.8 (Cu 3x O), Gaussian
+    atoms with exact exchange as Z^2.4 (Cu with HSE06 in aug-cc-pVTZ 21x O).  It only orders the jobs."""
+    from ...elements import atomic_number
+
+    def scale(s: System) -> float:
+        return (max(atomic_number(x) for x in s.symbols) / 8.0) ** exponent
+    return scale
+
+
+def _by_atoms(s: System) -> float:
+    """Harmonic frequencies take 6N gradients: the cost grows with the number of atoms (water = 1)."""
+    return len(s.symbols) / 3.0
+
+
 # ----------------------------------------------------------- solver calls
 def _single_species(s: System, st: dict[str, Any]) -> tuple[SolverUse, ...]:
     """One species and its ions: radial for atoms (unless atoms = "basis"), else Gaussian."""
@@ -207,12 +225,14 @@ KINDS: dict[str, PropertyKind] = {
         PropertyKind("atom_survey", ("ionisation_potential", "electron_affinity", "homo_vs_ip",
                                      "spin_polarization_energy", "sd_promotion", "sp_promotion"),
                      ("precision", "atom_options"), _neutral_atom_only, _atom_survey, 3.0,
-                     "IP, EA, -HOMO, spin-polarization, s-d and s-p promotion energies of one atom (radial)"),
+                     "IP, EA, -HOMO, spin-polarization, s-d and s-p promotion energies of one atom (radial)",
+                     scale=_by_element(0.8)),
         PropertyKind("atom_survey_basis", ("ionisation_potential", "electron_affinity", "homo_vs_ip"), ("basis",),
                      _neutral_atom_only, _gaussian, 4.0,
-                     "IP, EA and -HOMO of one atom from Gaussian-basis atoms with integer occupations"),
+                     "IP, EA and -HOMO of one atom from Gaussian-basis atoms with integer occupations",
+                     scale=_by_element(2.4)),
         PropertyKind("basis_set_error", ("basis_set_error",), ("basis", "precision"), _neutral_atom_only,
-                     _radial_and_basis, 2.0, "E(basis) - E(radial limit) of one atom"),
+                     _radial_and_basis, 2.0, "E(basis) - E(radial limit) of one atom", scale=_by_element(0.8)),
         PropertyKind("diatomic_survey", ("bond_length", "harmonic_frequency", "dissociation_energy"),
                      _MOL_SETTINGS, _diatomic_only, _gaussian, 10.0,
                      "r_e, omega_e (analytic gradients) and D_0 = D_e - ZPE of a diatomic in a basis"),
@@ -223,7 +243,7 @@ KINDS: dict[str, PropertyKind] = {
         PropertyKind("vibrations", ("zero_point_energy", "lowest_harmonic_frequency"), _MOL_SETTINGS,
                      _molecule_only, _gaussian, 120.0,
                      "harmonic frequencies and zero-point energy at the optimised geometry",
-                     settings_check=_geometry_options),
+                     settings_check=_geometry_options, scale=_by_atoms),
     )
 }
 

@@ -52,7 +52,7 @@ def gaussian_part_vs_pyscf(outcome, functionals=("pbe", "pbe0")) -> None:
         mol = diatomic(j.system)
         a, b = mol.symbols
         for c in j.calculations:
-            if c["label"].endswith("(energy and gradient)"):
+            if "(energy and gradient" in c["label"]:
                 points.append((j.functional, f"{a} 0 0 0; {b} 0 0 {c['r_angstrom']}", mol.multiplicity - 1, True))
             elif c["label"].endswith(f"atom in {outcome.plan.diatomic_basis}"):
                 points.append((j.functional, f"{c['species']} 0 0 0", c["multiplicity"] - 1, False))

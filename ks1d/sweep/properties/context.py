@@ -85,7 +85,8 @@ class Context:
         """The minimum of E(R) of this diatomic from analytic gradients (:func:`.calculations.diatomic_minimum`).
 
         Every energy-and-gradient evaluation is recorded as one solver call, labelled
-        ``"<label> at R = … A (energy and gradient)"``; an exception leaving it names the step.
+        ``"<label> at R = … A (energy and gradient)"`` (``"…, force constant)"`` for the two extra samples
+        after a stalled SCF); an exception leaving it names the step.
         """
         s = self.system
         sym_a, sym_b = s.symbols
@@ -98,9 +99,15 @@ class Context:
             raise
         for point in summary["points"]:
             call = {k: v for k, v in point.items() if k != "seconds"}
-            self.record({"label": f"{label} at R = {point['r_angstrom']:.5f} A (energy and gradient)",
-                         "solver": "gaussian", "species": s.name, "charge": s.charge, "multiplicity": multiplicity,
-                         "basis": basis, **call}, point["seconds"] if dt else 0.0)
+            step = f"{label} at R = {point['r_angstrom']:.5f} A (energy and gradient"
+            step += ")" if point["role"] == "search" else f", {point['role']})"
+            self.record({"label": step, "solver": "gaussian", "species": s.name, "charge": s.charge,
+                         "multiplicity": multiplicity, "basis": basis, **call}, point["seconds"] if dt else 0.0)
+        if summary.get("stalled_scf"):
+            tol = max(p["residual_tolerance"] for p in summary["points"])
+            self.details.setdefault("relaxed_scf_steps", []).append(
+                {"step": f"{label} bond-length search", "residual_tolerance": tol,
+                 "note": summary["minimum"]["force_constant_from"]})
         return summary["minimum"]
 
     def record(self, call: dict[str, Any], seconds: float) -> None:

@@ -55,7 +55,8 @@ def _gradient_minimum(c: Context) -> tuple[dict[str, float], float]:
     k = found["force_constant"]
     ma, mb = _masses(c)
     c.details.update({"method": "minimum of the Hermite interpolant through analytic energies and gradients "
-                                "(ks1d.sweep.properties.bondmin)",
+                                "(ks1d.sweep.properties.bondmin); force constant from the "
+                                + found["force_constant_from"],
                       "bond_search": found, "force_constant": k})
     values = {"bond_length": found["r_e_bohr"] * units.BOHR_TO_ANGSTROM,
               "harmonic_frequency": harmonic_wavenumber(k, ma, mb)}

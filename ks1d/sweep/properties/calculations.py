@@ -110,7 +110,10 @@ def _gradient_point(result, r_bohr: float, slope: float, seconds: float) -> dict
 
 #: SCF settings of the bond-length search unless the job's molecule_options set them: the solver's gradient
 #: tolerances (residual 1e-7, |ΔE| < 1e-10), at most 40 iterations before a stalled residual is considered
+#: (a slow SCF that has not stalled is solved again with LONG_SCF_ITERATIONS)
 BOND_SCF = {"max_iterations": 40}
+#: an SCF that is slow but not stalled gets the solver's usual iteration limit in a second attempt
+LONG_SCF_ITERATIONS = 100
 #: a residual that stalls below this with the energy converged (UKS OH, ²Π, stalls at 8e-7: the SCF drifts
 #: along the rotation of its π hole) relaxes the residual tolerance to it for the rest of the search
 BOND_STALLED_SCF = {"residual_tolerance": 1e-5, "max_iterations": 100}
@@ -157,6 +160,7 @@ def diatomic_minimum(sym_a: str, sym_b: str, r_start_angstrom: float, xc: str, b
         from .bondmin import bond_minimum
 
         scf, rest = split_scf_options(opts)
+        own_limit = "max_iterations" not in scf
         scf = {**BOND_SCF, **scf}
         numbers = (elements.atomic_number(sym_a), elements.atomic_number(sym_b))
         points: list[dict[str, Any]] = []
@@ -168,10 +172,15 @@ def diatomic_minimum(sym_a: str, sym_b: str, r_start_angstrom: float, xc: str, b
                 return solve_molecule(geom, basis=basis, xc=xc, multiplicity=multiplicity, scf=settings,
                                       gradient=True, start=state["last"], **rest)
             except ConvergenceError as exc:
-                if state["stalled"] or not _stalled(exc.history, BOND_STALLED_SCF["residual_tolerance"]):
+                if not state["stalled"] and _stalled(exc.history, BOND_STALLED_SCF["residual_tolerance"]):
+                    state["stalled"] = True
+                    return solve(geom)
+                if state["stalled"] or not own_limit or settings["max_iterations"] >= LONG_SCF_ITERATIONS:
                     raise
-                state["stalled"] = True
-                return solve(geom)
+                # slow but not stalled: the solver's usual iteration limit before giving up
+                return solve_molecule(geom, basis=basis, xc=xc, multiplicity=multiplicity,
+                                      scf={**settings, "max_iterations": LONG_SCF_ITERATIONS}, gradient=True,
+                                      start=state["last"], **rest)
 
         def evaluate(r: float, role: str = "search") -> tuple[float, float]:
             t0 = time.perf_counter()

@@ -24,7 +24,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 #: Display text of the units (the stored unit names are ASCII).
-UNIT_TEXT: dict[str, str] = {"angstrom": "Å", "cm^-1": "cm⁻¹", "mhartree": "mHa"}
+UNIT_TEXT: dict[str, str] = {"angstrom": "Å", "cm^-1": "cm⁻¹", "mhartree": "mHa", "degree": "°"}
 #: Decimals for a quantity this table does not know (e.g. from a store written by another version).
 DEFAULT_DECIMALS = 4
 
@@ -77,6 +77,16 @@ QUANTITIES: dict[str, Quantity] = {q.name: q for q in (
        "Basis-set error of the planned basis", "ΔE_basis", 3),
     _q("dissociation_energy", "eV", "Dissociation energy D_0 = D_e − ½ω_e", "Diatomic dissociation energies D_0",
        "D_0", 3),
+    _q("geometry_bond_deviation", "angstrom", "Largest bond-length change on optimisation r_opt − r_ref",
+       "Bond-length changes on optimisation", "Δr_max", 4, r"Largest bond-length change $r_\mathrm{opt} - "
+       r"r_\mathrm{ref}$", signed=True),
+    _q("geometry_angle_deviation", "degree", "Largest bond-angle change on optimisation θ_opt − θ_ref",
+       "Bond-angle changes on optimisation", "Δθ_max", 2, r"Largest bond-angle change $\theta_\mathrm{opt} - "
+       r"\theta_\mathrm{ref}$", signed=True),
+    _q("zero_point_energy", "kcal/mol", "Harmonic zero-point energy ½Σħω", "Harmonic zero-point energies", "ZPE",
+       2, r"Harmonic zero-point energy $\frac{1}{2}\sum\hbar\omega$"),
+    _q("lowest_harmonic_frequency", "cm^-1", "Lowest harmonic frequency (negative: imaginary)",
+       "Lowest harmonic frequencies", "ω_min", 1, signed=True),
 )}
 
 

@@ -182,3 +182,18 @@ def test_range_separated_hybrids_get_gaussian_atoms_and_no_rank_slot():
     assert ("atom_survey", "pbe") in kinds and ("atom_survey_basis", "hse06") in kinds
     assert kinds[("atom_survey_basis", "hse06")] == {"basis": "aug-cc-pvtz"}
     assert any("Gaussian atoms" in s.reason for s in plan.skipped if s.functional == "hse06")
+
+
+def test_the_longest_job_of_the_readme_report_starts_first():
+    # measured on the README example (benchmarks/bench_report.py): Cu with HSE06 in aug-cc-pVTZ (Gaussian atoms)
+    # takes ~20x an O atom and ~6x a diatomic; the engine starts jobs in order of registry cost, so that job
+    # must lead (started after the fourteen diatomics, it alone set the wall time)
+    from ks1d.sweep.properties.registry import REGISTRY
+
+    here = os.path.dirname(os.path.abspath(__file__))
+    plan = plan_report(structure=os.path.join(here, "..", "examples", "report_cu_site.xyz"), basis="def2-tzvp")
+    first = max(plan.jobs, key=REGISTRY.cost)
+    assert (first.property, first.system.name, first.functional) == ("atom_survey_basis", "Cu", "hse06")
+    # and a radial Cu atom costs more than a radial O atom of the same functional
+    cost = {(j.property, j.system.name, j.functional): REGISTRY.cost(j) for j in plan.jobs}
+    assert cost[("atom_survey", "Cu", "pbe")] > cost[("atom_survey", "O", "pbe")]

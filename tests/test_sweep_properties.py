@@ -68,13 +68,13 @@ def test_h2_atomization_energy_matches_pyscf():
     assert out["values"]["atomization_energy"] == pytest.approx(ref, abs=0.01)  # kcal/mol
 
 
-def test_h2_bond_length_and_frequency_match_a_pyscf_scan():
-    # the same 7-point scan and quartic fit done on pyscf energies (numpy polyfit), LDA/def2-SVP;
-    # masses: 1H = 1.00782503 u (CODATA/AME, as in pyscf.data.elements)
+def test_h2_scan_bond_length_and_frequency_match_a_pyscf_scan():
+    # the earlier scan kind (diatomic_curve_scan): the same 7-point scan and quartic fit done on pyscf energies
+    # (numpy polyfit), LDA/def2-SVP; masses: 1H = 1.00782503 u (CODATA/AME, as in pyscf.data.elements)
     from ks1d.sweep.properties.datasets import diatomic
 
     h2 = diatomic("H2")
-    out = run_property("diatomic_curve", h2, "lda", {"basis": "def2-svp", "scan_points": 7, "scan_step": 0.02})
+    out = run_property("diatomic_curve_scan", h2, "lda", {"basis": "def2-svp", "scan_points": 7, "scan_step": 0.02})
     scan = out["details"]["scans"][-1]
     grid = np.array(scan["r_angstrom"])
     e = np.array([_pyscf_energy(f"H 0 0 0; H 0 0 {r}", 0) for r in grid])

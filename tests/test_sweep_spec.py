@@ -22,14 +22,18 @@ def test_jobs_are_the_product_of_functionals_systems_and_properties():
         properties = ["ionisation_potential", "electron_affinity"]
         systems = ["Li", "F"]
         [[study]]
-        properties = ["bond_length", "harmonic_frequency"]   # one scan job gives both
+        properties = ["bond_length", "harmonic_frequency"]   # one gradient job gives both
         systems = ["diatomics:N2"]
         functionals = ["pbe0"]
     """)
     jobs = spec.jobs()
     assert len(jobs) == 2 * 2 * 2 + 1
-    scan = [j for j in jobs if j.property == "diatomic_curve"]
-    assert len(scan) == 1 and scan[0].functional == "pbe0"
+    curve = [j for j in jobs if j.property == "diatomic_curve"]
+    assert len(curve) == 1 and curve[0].functional == "pbe0"
+    # the gradient kind reads no scan settings, so they do not enter its job key; the scan kind's do
+    assert set(curve[0].settings_dict) == {"basis"}
+    scan = _spec('[[study]]\nproperty = "diatomic_curve_scan"\nsystems = ["diatomics:N2"]\nscan_points = 9\n').jobs()
+    assert scan[0].settings_dict["scan_points"] == 9 and "scan_step" in scan[0].settings_dict
 
 
 @pytest.mark.parametrize("body, message", [

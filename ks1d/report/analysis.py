@@ -166,6 +166,11 @@ def _flags(jr: JobRow) -> list[Flag]:
         out.append(Flag(jr.system, jr.functional, "SCF retried",
                         f"{step}: converged only in the retry (slower mixing, density tolerance 1e-5)", jr.key,
                         quantity_of_step(step)))
+    for step in d.get("relaxed_scf_steps", []):
+        out.append(Flag(jr.system, jr.functional, "SCF tolerance relaxed",
+                        f"{step['step']}: the SCF residual stalled with the energy converged, so the search ran to "
+                        f"a residual of {step['residual_tolerance']:.0e}; force constant from the "
+                        f"{step['note']}", jr.key, "harmonic_frequency"))
     for w in d.get("warnings", []):
         out.append(Flag(jr.system, jr.functional, "warning", w, jr.key,
                         "basis_set_error" if jr.property == "basis_set_error" else None))

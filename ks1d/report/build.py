@@ -38,9 +38,11 @@ EXPLAIN = {
     "basis_set_error": "ΔE = E(planned basis) − E(radial basis-set limit) of each neutral atom, same functional "
                        "and spherical state. 1 kcal/mol per atom (1.594 mHa) is the usual tolerance (common "
                        "practice); much of this error cancels in energy differences that conserve the atoms.",
-    "bond_length": "r_e from a 7-point scan (step 0.02 Å) with a quartic fit, in the diatomic basis. "
-                   "Experiment: Huber & Herzberg (1979) via the NIST Chemistry WebBook (from memory).",
-    "harmonic_frequency": "ω_e = √(k/μ) from the curvature of the same fit (most abundant isotopes). "
+    "bond_length": "r_e where dE/dR = 0, in the diatomic basis: analytic energies and gradients at three or more "
+                   "bond lengths (each SCF restarted from the previous density), interpolated by the Hermite "
+                   "polynomial through them. Experiment: Huber & Herzberg (1979) via the NIST Chemistry WebBook "
+                   "(from memory).",
+    "harmonic_frequency": "ω_e = √(k/μ) with k = E″(r_e) from the same interpolant (most abundant isotopes). "
                           "Experiment: Huber & Herzberg (1979) (from memory).",
     "dissociation_energy": "D_0 = E(A) + E(B) − E(r_e) − ½ω_e, atoms and molecule in the same basis (UKS, integer "
                            "occupations, no counterpoise). Experiment: D_0 of Huber & Herzberg (1979) "

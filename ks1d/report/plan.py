@@ -11,7 +11,8 @@ an ``atom_survey`` job (IP, EA, −ε_HOMO, spin-polarization and s→d promotio
 energies) and, with a planned basis, a ``basis_set_error`` job.  Per element
 pair with experimental diatomic data (bonded pairs of a structure file, or
 every pair of an element list) and functional: a ``diatomic_survey`` job in
-the planned basis (``DEFAULT_DIATOMIC_BASIS`` when none is planned).
+the planned basis (``DEFAULT_DIATOMIC_BASIS`` when none is planned): r_e and ω_e
+from analytic gradients, D_0 from the atoms in the same basis.
 
 What a solver cannot do is skipped with a note: the radial solver has no
 range-separated hybrids, so HSE06-type functionals get their IP, EA and
@@ -33,13 +34,12 @@ from ..sweep.properties.systems import neutral_atom, parse_elements
 
 #: The default ladder: LDA, two GGAs, a meta-GGA, two global hybrids and a screened hybrid.
 DEFAULT_FUNCTIONALS = ("lda", "pbe", "pbesol", "r2scan", "pbe0", "hse06", "b3lyp")
-#: Basis of the diatomic scans when no basis is planned (triple-zeta with polarization: common practice).
+#: Basis of the diatomics when no basis is planned (triple-zeta with polarization: common practice).
 DEFAULT_DIATOMIC_BASIS = "def2-tzvp"
 #: Basis of the symmetry-breaking correction when asked for without a name (diffuse functions for anions).
 SYMMETRY_BROKEN_BASIS = "aug-cc-pvtz"
 
 ATOM_SETTINGS = {"precision": "normal", "atom_options": {"estimate_error": False}}
-SCAN = {"scan_points": 7, "scan_step": 0.02}
 
 
 @dataclass(frozen=True)
@@ -183,7 +183,7 @@ def plan_report(elements: Sequence[str] = (), structure: str | Structure | None 
                                 settings=freeze_settings({"basis": gaussian_atoms})))
         for f in with_data:
             jobs.append(Job(system=diatomic(f), property="diatomic_survey", functional=xc,
-                            settings=freeze_settings({"basis": diatomic_basis, **SCAN})))
+                            settings=freeze_settings({"basis": diatomic_basis})))
     check_jobs(jobs)  # the checks a sweep spec gets: every job's solver can do its functional, in its basis
     return ReportPlan(elements=tuple(symbols), functionals=xcs, basis=basis, diatomic_basis=diatomic_basis,
                       diatomics=tuple(with_data), pairs_without_data=tuple(without), source=source,

@@ -14,10 +14,12 @@ A spec file reads like this::
     systems = ["Li", "C", "N", "O"]
 
     [[study]]
-    properties = ["bond_length", "harmonic_frequency"]
+    properties = ["bond_length", "harmonic_frequency"]    # analytic gradients
     systems = ["g2-1:N2", "g2-1:CO", { xyz = "mine.xyz", name = "X2" }]
-    scan_points = 7
-    scan_step = 0.02          # angstrom
+
+    [[study]]
+    properties = ["optimized_geometry", "zero_point_energy"]
+    systems = ["g2-1:H2O", "g2-1:NH3"]
 
 Systems are written as
 
@@ -32,7 +34,8 @@ Systems are written as
 A study may carry a ``label`` (free text) and its own ``functionals``.
 Solver keys (in ``[solver]`` or any study, the study winning):
 ``precision``, ``spin`` (radial atoms), ``atoms`` (``"radial"`` or ``"basis"``:
-how atoms are solved), ``basis``, ``scan_points``, ``scan_step``, and the
+how atoms are solved), ``basis``, ``scan_points`` and ``scan_step`` (read only by
+``diatomic_curve_scan``, the energy-scan method kept for comparison), and the
 pass-through tables ``atom_options`` / ``molecule_options``: extra keyword
 arguments of :func:`ks1d.radial.scf.solve_atom` / :func:`ks1d.gaussian.scf.solve_molecule`,
 with the SCF options of :class:`ks1d.results.SCFOptions` given flat in the

@@ -81,6 +81,35 @@ class Context:
         self.record(record, dt)
         return summary
 
+    def bond_minimum(self, label: str, r_start: float, multiplicity: int) -> dict[str, Any]:
+        """The minimum of E(R) of this diatomic from analytic gradients (:func:`.calculations.diatomic_minimum`).
+
+        Every energy-and-gradient evaluation is recorded as one solver call, labelled
+        ``"<label> at R = … A (energy and gradient)"`` (``"…, force constant)"`` for the two extra samples
+        after a stalled SCF); an exception leaving it names the step.
+        """
+        s = self.system
+        sym_a, sym_b = s.symbols
+        basis = self.settings["basis"]
+        try:
+            summary, dt = calculations.diatomic_minimum(sym_a, sym_b, r_start, self.functional, basis, multiplicity,
+                                                        options=self.settings.get("molecule_options"))
+        except Exception as exc:
+            name_step(exc, f"{label}: bond-length search")
+            raise
+        for point in summary["points"]:
+            call = {k: v for k, v in point.items() if k != "seconds"}
+            step = f"{label} at R = {point['r_angstrom']:.5f} A (energy and gradient"
+            step += ")" if point["role"] == "search" else f", {point['role']})"
+            self.record({"label": step, "solver": "gaussian", "species": s.name, "charge": s.charge,
+                         "multiplicity": multiplicity, "basis": basis, **call}, point["seconds"] if dt else 0.0)
+        if summary.get("stalled_scf"):
+            tol = max(p["residual_tolerance"] for p in summary["points"])
+            self.details.setdefault("relaxed_scf_steps", []).append(
+                {"step": f"{label} bond-length search", "residual_tolerance": tol,
+                 "note": summary["minimum"]["force_constant_from"]})
+        return summary["minimum"]
+
     def record(self, call: dict[str, Any], seconds: float) -> None:
         """Add one solver call's summary (and the seconds it took) to the job's record."""
         self.calculations.append(call)

@@ -303,8 +303,10 @@ def reference_for(quantity: str, system: System, functional: str | None = None,
             ref = g2_1_atomization_energy(system.key)
     elif quantity in _DIATOMIC_REFERENCES:
         if system.is_diatomic:
-            key = system.key if system.dataset in ("g2-1", "diatomics") else _formula(system)
-            ref = _from_loader(_DIATOMIC_REFERENCES[quantity], key, quantity)
+            ref = _from_loader(_DIATOMIC_REFERENCES[quantity], _diatomic_key(system), quantity)
+    elif quantity in ("zero_point_energy", "lowest_harmonic_frequency"):
+        if system.is_diatomic:  # harmonic constants exist for diatomics only (ks1d data: Huber & Herzberg)
+            ref = _diatomic_harmonic(quantity, _diatomic_key(system))
     elif quantity == "spin_splitting":
         if system.dataset == "g2-1-pair":
             ref = g2_1_singlet_triplet(system.key)
@@ -312,6 +314,20 @@ def reference_for(quantity: str, system: System, functional: str | None = None,
         if neutral_atom and functional and settings.get("atoms", "radial") == "radial":
             ref = _total_energy_reference(system.symbol, functional, settings.get("spin", "polarized"))
     return _in_unit(ref, quantity)
+
+
+def _diatomic_key(system: System) -> str:
+    return system.key if system.dataset in ("g2-1", "diatomics") else _formula(system)
+
+
+def _diatomic_harmonic(quantity: str, key: str) -> Reference | None:
+    """ω_e (cm⁻¹) of a diatomic as its lowest harmonic wavenumber, or ½ω_e as its harmonic zero-point energy
+    (kcal/mol): the harmonic quantities, without the anharmonic −¼ω_e x_e of the true zero-point level."""
+    ref = _from_loader("diatomic_harmonic_frequency", key, quantity)
+    if ref is None or quantity == "lowest_harmonic_frequency":
+        return ref
+    kcal = 0.5 * convert(ref.value, ref.unit, "hartree") * units.HARTREE_TO_KCAL_MOL
+    return Reference(quantity, ref.key, kcal, "kcal/mol", f"½ω_e from {ref.source}", ref.from_memory)
 
 
 def _total_energy_reference(symbol: str, functional: str, spin: str) -> Reference | None:

@@ -12,10 +12,15 @@ spin-polarized ground state unless noted; units from :mod:`ks1d.quantities`):
 * ``ionisation_potential``  IP = E(X⁺) − E(X)                          (eV)
 * ``electron_affinity``     EA = E(X) − E(X⁻)                          (eV)
 * ``atomization_energy``    D_e = Σ_atoms E(A) − E(M)                  (kcal/mol)
-* ``diatomic_curve``        r_e and ω_e from a polynomial fit to E(R)  (Å, cm⁻¹)
+* ``diatomic_curve``        r_e and ω_e = √(E″(r_e)/μ) from analytic gradients (Å, cm⁻¹)
+* ``diatomic_curve_scan``   the same from an energy scan and a quartic fit (the earlier method)
 * ``spin_splitting``        E(state 2) − E(state 1) of a spin-state pair (eV)
 * ``sd_promotion``          E(dⁿ⁺¹s¹) − E(dⁿs²) of a transition-metal atom (eV)
 * ``homo_vs_ip``            −ε_HOMO, to compare with the experimental IP (eV)
+* ``optimized_geometry``    largest change of a bond length r_opt − r_ref (Å) and of a bond angle (degrees)
+                            after a geometry optimisation from the system's geometry (:mod:`.geometry`)
+* ``vibrations``            harmonic zero-point energy ½Σħω (kcal/mol) and the lowest harmonic
+                            wavenumber (cm⁻¹, negative if imaginary) at the optimised geometry
 * ``atom_survey``, ``atom_survey_basis``, ``basis_set_error``, ``diatomic_survey``:
   the report's battery (:mod:`.atom_survey`, :mod:`.diatomic`)
 
@@ -35,6 +40,9 @@ from ...quantities import QUANTITIES
 from .configurations import sd_configurations
 from .systems import System
 
+#: keywords of solve_molecule that ks1d.optimize_molecule and ks1d.harmonic_frequencies pass on
+GEOMETRY_SOLVER_OPTIONS = ("spin", "grid", "guess", "ao_cache_mb", "coulomb_fitting", "fit_switch")
+
 
 class SolverUse(NamedTuple):
     """One solver a job calls: ``"radial"`` (basis is None) or ``"gaussian"`` in ``basis``."""
@@ -53,7 +61,8 @@ class PropertyKind:
     ``check(system)`` says why a system does not suit the kind (None when it does);
     ``settings_check(settings)`` the same for the job's settings; ``solvers(system,
     settings)`` lists the solver calls a job makes (for the up-front checks of
-    :mod:`.checks`).  ``molecule_cost`` is the cost for a molecule when it differs.
+    :mod:`.checks`).  ``molecule_cost`` is the cost for a molecule when it differs; ``scale(system)``
+    multiplies the cost by how the job grows with the system (see :func:`_by_element`).
     """
 
     name: str
@@ -65,11 +74,11 @@ class PropertyKind:
     description: str = ""
     molecule_cost: float | None = None
     settings_check: Callable[[dict[str, Any]], str | None] | None = None
+    scale: Callable[[System], float] | None = None
 
     def cost_for(self, system: System) -> float:
-        if self.molecule_cost is not None and not system.is_atom:
-            return self.molecule_cost
-        return self.cost
+        base = self.molecule_cost if self.molecule_cost is not None and not system.is_atom else self.cost
+        return base * (self.scale(system) if self.scale is not None else 1.0)
 
 
 # ------------------------------------------------------------------ checks
@@ -122,10 +131,39 @@ def _sd_check(s: System) -> str | None:
     return None
 
 
+def _geometry_options(settings: dict[str, Any]) -> str | None:
+    """Geometry optimisations and frequencies pass only some solver keywords on (plus the SCF options)."""
+    from ...results import SCFOptions
+
+    allowed = set(GEOMETRY_SOLVER_OPTIONS) | set(SCFOptions.names())
+    bad = sorted(set(settings.get("molecule_options") or {}) - allowed)
+    if bad:
+        return (f"molecule_options {', '.join(map(repr, bad))} cannot be passed to a geometry optimisation "
+                f"(it takes {', '.join(GEOMETRY_SOLVER_OPTIONS)} and the SCF options)")
+    return None
+
+
 def _radial_atoms_only(settings: dict[str, Any]) -> str | None:
     if settings.get("atoms", "radial") != "radial":
         return "needs radial atoms (configurations are set on the radial solver); remove atoms = \"basis\""
     return None
+
+
+# ------------------------------------------------------------ cost scales
+def _by_element(exponent: float) -> Callable[[System], float]:
+    """Cost relative to oxygen, (Z/8)^exponent for the heaviest atom: a rule fitted to the job times of the
+    README report (def2-TZVP and aug-cc-pVTZ, Cu against O): radial atoms grow as Z^0.8 (Cu 3x O), Gaussian
+    atoms with exact exchange as Z^2.4 (Cu with HSE06 in aug-cc-pVTZ 21x O).  It only orders the jobs."""
+    from ...elements import atomic_number
+
+    def scale(s: System) -> float:
+        return (max(atomic_number(x) for x in s.symbols) / 8.0) ** exponent
+    return scale
+
+
+def _by_atoms(s: System) -> float:
+    """Harmonic frequencies take 6N gradients: the cost grows with the number of atoms (water = 1)."""
+    return len(s.symbols) / 3.0
 
 
 # ----------------------------------------------------------- solver calls
@@ -174,8 +212,10 @@ KINDS: dict[str, PropertyKind] = {
         PropertyKind("atomization_energy", ("atomization_energy",),
                      ("atoms", "basis", "molecule_options", "precision", "spin", "atom_options"),
                      _molecule_only, _atomization, 4.6, "sum of atom energies minus molecule energy"),
-        PropertyKind("diatomic_curve", ("bond_length", "harmonic_frequency"), _SCAN_SETTINGS, _diatomic_only,
-                     _gaussian, 22.0, "bond length and harmonic frequency from an energy scan"),
+        PropertyKind("diatomic_curve", ("bond_length", "harmonic_frequency"), _MOL_SETTINGS, _diatomic_only,
+                     _gaussian, 8.0, "bond length and harmonic frequency from analytic gradients"),
+        PropertyKind("diatomic_curve_scan", ("bond_length", "harmonic_frequency"), _SCAN_SETTINGS, _diatomic_only,
+                     _gaussian, 22.0, "bond length and harmonic frequency from an energy scan and a quartic fit"),
         PropertyKind("spin_splitting", ("spin_splitting",), _MOL_SETTINGS, _pair_only, _gaussian, 4.2,
                      "E(second multiplicity) - E(first multiplicity)"),
         PropertyKind("sd_promotion", ("sd_promotion",), ("precision", "spin", "atom_options", "atoms"), _sd_check,
@@ -185,15 +225,25 @@ KINDS: dict[str, PropertyKind] = {
         PropertyKind("atom_survey", ("ionisation_potential", "electron_affinity", "homo_vs_ip",
                                      "spin_polarization_energy", "sd_promotion", "sp_promotion"),
                      ("precision", "atom_options"), _neutral_atom_only, _atom_survey, 3.0,
-                     "IP, EA, -HOMO, spin-polarization, s-d and s-p promotion energies of one atom (radial)"),
+                     "IP, EA, -HOMO, spin-polarization, s-d and s-p promotion energies of one atom (radial)",
+                     scale=_by_element(0.8)),
         PropertyKind("atom_survey_basis", ("ionisation_potential", "electron_affinity", "homo_vs_ip"), ("basis",),
                      _neutral_atom_only, _gaussian, 4.0,
-                     "IP, EA and -HOMO of one atom from Gaussian-basis atoms with integer occupations"),
+                     "IP, EA and -HOMO of one atom from Gaussian-basis atoms with integer occupations",
+                     scale=_by_element(2.4)),
         PropertyKind("basis_set_error", ("basis_set_error",), ("basis", "precision"), _neutral_atom_only,
-                     _radial_and_basis, 2.0, "E(basis) - E(radial limit) of one atom"),
+                     _radial_and_basis, 2.0, "E(basis) - E(radial limit) of one atom", scale=_by_element(0.8)),
         PropertyKind("diatomic_survey", ("bond_length", "harmonic_frequency", "dissociation_energy"),
-                     _SCAN_SETTINGS, _diatomic_only, _gaussian, 24.0,
-                     "r_e, omega_e and D_0 = D_e - ZPE of a diatomic in a basis"),
+                     _MOL_SETTINGS, _diatomic_only, _gaussian, 10.0,
+                     "r_e, omega_e (analytic gradients) and D_0 = D_e - ZPE of a diatomic in a basis"),
+        PropertyKind("optimized_geometry", ("geometry_bond_deviation", "geometry_angle_deviation"), _MOL_SETTINGS,
+                     _molecule_only, _gaussian, 30.0,
+                     "geometry optimisation (analytic gradients); largest bond-length and angle change from the "
+                     "input geometry", settings_check=_geometry_options),
+        PropertyKind("vibrations", ("zero_point_energy", "lowest_harmonic_frequency"), _MOL_SETTINGS,
+                     _molecule_only, _gaussian, 120.0,
+                     "harmonic frequencies and zero-point energy at the optimised geometry",
+                     settings_check=_geometry_options, scale=_by_atoms),
     )
 }
 
@@ -206,6 +256,10 @@ PROPERTY_NAMES: dict[str, str] = {
     **{k: k for k in KINDS},
     "bond_length": "diatomic_curve",
     "harmonic_frequency": "diatomic_curve",
+    "optimised_geometry": "optimized_geometry",
+    "geometry": "optimized_geometry",
+    "harmonic_frequencies": "vibrations",
+    "zero_point_energy": "vibrations",
     "ionization_potential": "ionisation_potential",
     "ionisation_energy": "ionisation_potential",
     "ionization_energy": "ionisation_potential",

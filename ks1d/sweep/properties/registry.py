@@ -7,9 +7,12 @@ solvers, cost); this module attaches their computations, each a function of a
 =====================  ==========================================
 total_energy … homo    :mod:`.basic`
 diatomic_curve         :func:`.diatomic.diatomic_curve`
+diatomic_curve_scan    :func:`.diatomic.diatomic_curve_scan`
 diatomic_survey        :func:`.diatomic.diatomic_survey`
 atom_survey(_basis)    :mod:`.atom_survey`
 basis_set_error        :func:`.atom_survey.basis_set_error`
+optimized_geometry     :func:`.geometry.optimized_geometry`
+vibrations             :func:`.geometry.vibrations`
 =====================  ==========================================
 
 :data:`REGISTRY` implements the engine's registry interface
@@ -20,7 +23,7 @@ from __future__ import annotations
 from collections.abc import Callable
 from typing import Any
 
-from . import atom_survey, basic, diatomic
+from . import atom_survey, basic, diatomic, geometry
 from .context import Context
 from .kinds import KINDS
 from .systems import System
@@ -32,6 +35,7 @@ COMPUTE: dict[str, Callable[[Context], dict[str, float]]] = {
     "electron_affinity": basic.electron_affinity,
     "atomization_energy": basic.atomization_energy,
     "diatomic_curve": diatomic.diatomic_curve,
+    "diatomic_curve_scan": diatomic.diatomic_curve_scan,
     "spin_splitting": basic.spin_splitting,
     "sd_promotion": basic.sd_promotion,
     "homo_vs_ip": basic.homo_vs_ip,
@@ -39,6 +43,8 @@ COMPUTE: dict[str, Callable[[Context], dict[str, float]]] = {
     "atom_survey_basis": atom_survey.atom_survey_basis,
     "basis_set_error": atom_survey.basis_set_error,
     "diatomic_survey": diatomic.diatomic_survey,
+    "optimized_geometry": geometry.optimized_geometry,
+    "vibrations": geometry.vibrations,
 }
 if set(COMPUTE) != set(KINDS):  # pragma: no cover - a programming error, caught by any import
     raise RuntimeError(f"kinds without a computation or the reverse: {sorted(set(COMPUTE) ^ set(KINDS))}")

@@ -132,7 +132,8 @@ def main() -> None:
         e5 = mf5.kernel(dm0=dm)
         e6 = mf5.newton().kernel(mf5.mo_coeff, mf5.mo_occ)
         print(f"   ratio {ratio:<4}  pyscf SCF {(e4 - res.total_energy) * 1e6:+8.3f}  pyscf energy of the projected "
-              f"ks1d state {(e_proj - res.total_energy) * 1e6:+8.3f}  SCF restarted there {(e5 - res.total_energy) * 1e6:+8.3f}"
+              f"ks1d state {(e_proj - res.total_energy) * 1e6:+8.3f}  "
+              f"SCF restarted there {(e5 - res.total_energy) * 1e6:+8.3f}"
               f"  then second-order {(e6 - res.total_energy) * 1e6:+8.3f}")
 
 

@@ -7,8 +7,8 @@ offending thing and, where one exists, the fix.
 """
 from __future__ import annotations
 
+from collections.abc import Sequence
 from dataclasses import dataclass
-from typing import Sequence
 
 
 class Ks1dError(Exception):

@@ -84,7 +84,8 @@ def nuclear_potential(Z: float, r: np.ndarray, model: str = "point", mass_number
     return -Z * erf(a * r) / r
 
 
-def nuclear_charge_inside(Z: float, r: np.ndarray, model: str = "point", mass_number: float | None = None) -> np.ndarray:
+def nuclear_charge_inside(Z: float, r: np.ndarray, model: str = "point",
+                          mass_number: float | None = None) -> np.ndarray:
     """Nuclear charge within radius r: Z for a point; Z [erf(√ξ r) − 2√(ξ/π) r exp(−ξ r²)] for the Gaussian."""
     r = np.asarray(r, dtype=float)
     if model == "point":

@@ -189,7 +189,8 @@ def _parse(text: str):
             core = m_core.group(1).capitalize()
             if core not in CORES:
                 raise ConfigurationError(
-                    f"unknown core '[{m_core.group(1)}]' in '{text}'; cores are {', '.join('[' + c + ']' for c in CORES)}"
+                    f"unknown core '[{m_core.group(1)}]' in '{text}'; "
+                    f"cores are {', '.join('[' + c + ']' for c in CORES)}"
                 )
             for key, val in _parse(CORES[core])[0].items():
                 _add(shells, key, val, text)
@@ -486,7 +487,7 @@ def build_dirac_configuration(Z: int, charge: float = 0.0, config: str | None = 
         shells, jshells = _parse(config)
         text = config
     _check_capacity(shells, text)
-    for (n, l), (occ, up) in shells.items():
+    for (_n, _l), (_occ, up) in shells.items():
         if up is not None:
             raise SpinError(f"configuration '{text}' gives explicit (up, down) occupations; four-component Dirac "
                             "atoms are spin-restricted (σ_z is not conserved), so give totals or j sub-shells")

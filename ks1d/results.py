@@ -136,7 +136,7 @@ class SCFOptions:
                 raise SettingsError(f"{name} must be ≥ 0 hartree, got {v}")
 
     @classmethod
-    def coerce(cls, value) -> "SCFOptions":
+    def coerce(cls, value) -> SCFOptions:
         """An SCFOptions from None, an SCFOptions or a mapping of its field names."""
         if value is None:
             return cls()
@@ -154,7 +154,7 @@ class SCFOptions:
     def names(cls) -> tuple[str, ...]:
         return tuple(f.name for f in fields(cls))
 
-    def resolved(self, defaults: "SCFOptions", solver: str, unsupported: tuple[str, ...] = ()) -> "SCFOptions":
+    def resolved(self, defaults: SCFOptions, solver: str, unsupported: tuple[str, ...] = ()) -> SCFOptions:
         """Fill unset fields from ``defaults``; refuse options the ``solver`` does not have."""
         for name in unsupported:
             v = getattr(self, name)

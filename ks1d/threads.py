@@ -9,7 +9,6 @@ from __future__ import annotations
 import functools
 from contextlib import contextmanager
 
-
 _controller = None
 _modules_seen = -1
 

@@ -19,7 +19,7 @@ from __future__ import annotations
 
 import difflib
 from dataclasses import dataclass
-from functools import lru_cache
+from functools import cache, lru_cache
 
 import numpy as np
 
@@ -143,7 +143,7 @@ class Functional:
         }
 
 
-@lru_cache(maxsize=None)
+@cache
 def _libxc_names() -> tuple[str, ...]:
     return tuple(sorted(k.lower() for k in _libxc().XC_CODES))
 

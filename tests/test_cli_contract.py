@@ -195,7 +195,7 @@ def test_qcschema_outputs_validate_with_qcelemental(files, capsys):
     # the spin-restricted N atom is a spin-averaged ensemble; its molecule block keeps the ground quartet
     assert docs[1][2].molecule.molecular_multiplicity == 4
     # energy parts add up (QCSchema: one- plus two-electron plus nuclear repulsion = total)
-    for _, doc, res in docs:
+    for _, _doc, res in docs:
         p = res.properties
         assert p.scf_one_electron_energy + p.scf_two_electron_energy + p.nuclear_repulsion_energy \
             == pytest.approx(res.return_result, abs=1e-9)

@@ -12,8 +12,7 @@ import pytest
 
 import ks1d
 from ks1d.cli import main
-from ks1d.errors import (BasisError, ConvergenceError, GeometryError, SettingsError, SpinError,
-                         UnsupportedFunctional)
+from ks1d.errors import BasisError, ConvergenceError, GeometryError, SettingsError, SpinError, UnsupportedFunctional
 from ks1d.gaussian.geometry import parse_xyz, read_geometry
 from ks1d.gaussian.scf import solve_molecule
 from ks1d.units import ANGSTROM_TO_BOHR

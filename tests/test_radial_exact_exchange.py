@@ -52,12 +52,17 @@ def test_range_separated_hybrids_are_refused_with_a_clear_message():
 
 
 # ---------------------------------------------------------------- open shells: average of configuration
-from functools import lru_cache  # noqa: E402
+from functools import cache  # noqa: E402
 from itertools import product  # noqa: E402
 from math import sqrt  # noqa: E402
 
-from ks1d.radial.exchange import (average_configuration_weights, gaunt_coefficient,  # noqa: E402
-                                  pair_probability, wigner3j, wigner3j_zero)
+from ks1d.radial.exchange import (  # noqa: E402
+    average_configuration_weights,
+    gaunt_coefficient,
+    pair_probability,
+    wigner3j,
+    wigner3j_zero,
+)
 from ks1d.units import HARTREE_TO_EV  # noqa: E402
 
 
@@ -146,7 +151,7 @@ def test_restricted_hartree_fock_with_one_electron_or_hole_equals_rohf_limit(sym
     assert abs(res.virial_residual) < 1e-8
 
 
-@lru_cache(maxsize=None)
+@cache
 def _pyscf_unrestricted(symbol, charge, two_s, xc):
     """pyscf UHF/UKS total energy (run now) in aug-cc-pVQZ; xc "hf" or libxc identifiers."""
     from pyscf import dft, gto, scf
@@ -162,7 +167,7 @@ def _pyscf_unrestricted(symbol, charge, two_s, xc):
     return e
 
 
-@lru_cache(maxsize=None)
+@cache
 def _radial(symbol, charge, xc):
     return ks1d.solve_atom(symbol, xc=xc, charge=charge, estimate_error=False)
 

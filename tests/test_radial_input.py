@@ -6,8 +6,15 @@ import sys
 import pytest
 
 import ks1d
-from ks1d.errors import (ConfigurationError, ConvergenceError, InputError, SettingsError, SpinError,
-                         UnknownElement, UnknownFunctional)
+from ks1d.errors import (
+    ConfigurationError,
+    ConvergenceError,
+    InputError,
+    SettingsError,
+    SpinError,
+    UnknownElement,
+    UnknownFunctional,
+)
 from ks1d.results import SCFOptions
 
 

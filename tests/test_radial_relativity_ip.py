@@ -6,7 +6,7 @@ cation 5d9); cations by ks1d's ionisation rule (the outermost sub-shell loses th
 The full table (Cu, Ag, Au, Hg, Pt, Tl, Pb, Rn × none/scalar/x2c/dirac) is printed by
 benchmarks/bench_radial_relativity_ip.py.
 """
-from functools import lru_cache
+from functools import cache
 
 import pytest
 
@@ -16,7 +16,7 @@ from ks1d.units import HARTREE_TO_EV
 mendeleev = pytest.importorskip("mendeleev")
 
 
-@lru_cache(maxsize=None)
+@cache
 def ip(symbol, relativity, config=None, cation_config=None):
     n = ks1d.solve_atom(symbol, xc="pbe", relativity=relativity, config=config, estimate_error=False)
     c = ks1d.solve_atom(symbol, xc="pbe", charge=1, relativity=relativity, config=cation_config,

@@ -4,6 +4,7 @@ checks are in test_reference_physics.py and the cross-checks against
 mendeleev and pyscf in test_reference_mendeleev.py / test_reference_pyscf.py."""
 from __future__ import annotations
 
+import dataclasses
 import json
 import math
 import subprocess
@@ -139,7 +140,7 @@ def test_to_dict_serialises_to_json():
 
 def test_values_are_immutable():
     ref = reference_value("hf_limit_total_energy", "He")
-    with pytest.raises(Exception):
+    with pytest.raises(dataclasses.FrozenInstanceError):
         ref.value = 0.0  # type: ignore[misc]
 
 

@@ -65,7 +65,6 @@ def test_regenerate_reproduces_the_shipped_files(tmp_path):
     # the two generated files are what ks1d.reference.regenerate writes from the installed mendeleev:
     # same elements, values equal within the tolerance above (a newer mendeleev may revise late digits)
     import csv
-
     from importlib import resources
 
     from ks1d.reference.regenerate import regenerate

@@ -3,7 +3,7 @@ from __future__ import annotations
 
 from ..serialize import dumps
 from ..units import HARTREE_TO_EV
-from ._common import check_writable, ProgressLine, add_output_options, write_json_document
+from ._common import ProgressLine, add_output_options, check_writable, write_json_document
 
 
 def register(sub) -> None:
@@ -12,7 +12,8 @@ def register(sub) -> None:
     p.add_argument("element", help="element symbol or atomic number (1-92)")
     p.add_argument("--xc", default="lda", help="functional alias or libxc identifiers (default: lda = lda_x,lda_c_vwn)")
     p.add_argument("--charge", type=float, default=0.0, help="net charge (default 0)")
-    p.add_argument("--restricted", action="store_true", help="spin-restricted (spin-averaged) instead of Hund's-rule polarized")
+    p.add_argument("--restricted", action="store_true",
+                   help="spin-restricted (spin-averaged) instead of Hund's-rule polarized")
     p.add_argument("--spin", type=int, default=None, metavar="2S", help="fix N_up - N_down (overrides Hund's rule)")
     p.add_argument("--config", default=None, help="configuration, e.g. '[Ar] 3d7 4s1' or '[He] 2s2 2p(3,1)'")
     p.add_argument("--relativity", choices=("none", "scalar", "x2c", "dirac"), default="none",
@@ -26,7 +27,8 @@ def register(sub) -> None:
                    help="fraction of the previous SCF input kept per step, in [0, 1) (default 0.5)")
     p.add_argument("--max-iterations", type=int, default=None, help="SCF iteration limit (default 150)")
     add_output_options(p, qcschema=True)
-    p.add_argument("--radial", action="store_true", help="with --json: include density, potentials and orbitals on the mesh")
+    p.add_argument("--radial", action="store_true",
+                   help="with --json: include density, potentials and orbitals on the mesh")
     p.set_defaults(func=run)
 
 

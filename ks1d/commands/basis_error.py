@@ -29,7 +29,8 @@ def register(subparsers) -> None:
 
 
 def format_report(rep) -> str:
-    head = f"{'atom':<5}{'2S+1':>5}{'E(basis) / Ha':>18}{'E(limit) / Ha':>18}{'mHa':>10}{'eV':>10}{'kcal/mol':>10}  occupations"
+    head = (f"{'atom':<5}{'2S+1':>5}{'E(basis) / Ha':>18}{'E(limit) / Ha':>18}"
+            f"{'mHa':>10}{'eV':>10}{'kcal/mol':>10}  occupations")
     lines = [f"basis {basis_label(rep.basis)}, functional {rep.xc}"]
     models = list(dict.fromkeys(a.limit_model for a in rep.atoms if a.limit_model))
     for m in models:
@@ -51,8 +52,8 @@ def format_report(rep) -> str:
 
 
 def run(args) -> int:
-    from ..validate.basis_error import basis_error_report
     from ..threads import single_threaded
+    from ..validate.basis_error import basis_error_report
 
     bar = ProgressLine("basis-error", enabled=not args.quiet)
     try:

@@ -53,8 +53,12 @@ def _tol(c) -> str:
     fmt = (lambda v: f"{v:.0e}") if c.unit in ("hartree", "e bohr") else (lambda v: f"{v:.3f}")
     if c.lower is None and c.upper is None:
         return "±" + fmt(c.tolerance)
-    lo = "-inf" if c.lower is None or math.isinf(c.lower) else f"{c.lower:+.0e}" if c.unit == "hartree" else f"{c.lower:+.3f}"
-    hi = "+inf" if c.upper is None or math.isinf(c.upper) else f"{c.upper:+.0e}" if c.unit == "hartree" else f"{c.upper:+.3f}"
+    def bound(v, infinite):
+        if v is None or math.isinf(v):
+            return infinite
+        return f"{v:+.0e}" if c.unit == "hartree" else f"{v:+.3f}"
+
+    lo, hi = bound(c.lower, "-inf"), bound(c.upper, "+inf")
     return f"[{lo}, {hi}]"
 
 

@@ -5,7 +5,15 @@ import sys
 
 from ..serialize import dumps
 from ..units import HARTREE_TO_EV
-from ._common import check_writable, BASIS_HELP, ProgressLine, add_output_options, basis_label, parse_basis, write_json_document
+from ._common import (
+    BASIS_HELP,
+    ProgressLine,
+    add_output_options,
+    basis_label,
+    check_writable,
+    parse_basis,
+    write_json_document,
+)
 
 
 def register(sub) -> None:

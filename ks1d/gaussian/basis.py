@@ -13,8 +13,8 @@ from __future__ import annotations
 
 import os
 import warnings
-from functools import lru_cache
 from dataclasses import dataclass
+from functools import lru_cache
 from pathlib import Path
 
 import numpy as np

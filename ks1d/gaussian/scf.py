@@ -205,7 +205,7 @@ class _FockBuilder:
             Ks = [K + Kold for K, Kold in zip(Ks, self._last[2])]
         self._last = (D.copy(), J, Ks)
         Kx = np.zeros_like(D)
-        for (omega, c), K in zip(kernels, Ks):
+        for (_omega, c), K in zip(kernels, Ks):
             Kx += c * K
         if self.can_fit:
             self.dJ = J - self.fit.build(D)
@@ -350,11 +350,11 @@ class _Outcome:
     parts: dict
     energy: float
     history: list
-    fock: "_FockBuilder"
+    fock: _FockBuilder
     t_diag: float
 
 
-def _iterate(p: _Problem, one: _OneElectron, orb: _Orbitals, fock: "_FockBuilder", F_guess: np.ndarray,
+def _iterate(p: _Problem, one: _OneElectron, orb: _Orbitals, fock: _FockBuilder, F_guess: np.ndarray,
              fit_switch: float, progress=None) -> _Outcome:
     """DIIS on the orbital gradient with the fitted → exact Coulomb policy and the fallback stage."""
     opt = p.options

@@ -42,9 +42,17 @@ from .density import FOUR_PI
 from .eigen import BlockPencil, rayleigh_refine, sign_changes
 from .mesh import MeshSpec
 from .poisson import hartree_energy
-from .relativity import (SPEED_OF_LIGHT, j2_of_kappa, l_of_kappa, positive_energy_states, relativistic_kinetic,
-                         rkb_matrices, small_basis_dirac, small_gram_dirac)
 from .problem import AtomicProblem, thomas_fermi_potential
+from .relativity import (
+    SPEED_OF_LIGHT,
+    j2_of_kappa,
+    l_of_kappa,
+    positive_energy_states,
+    relativistic_kinetic,
+    rkb_matrices,
+    small_basis_dirac,
+    small_gram_dirac,
+)
 
 
 class KappaChannel:

@@ -112,7 +112,7 @@ class BlockPencil:
         return y[self.inv]
 
 
-def rayleigh_refine(pencil: "BlockPencil", x: np.ndarray, sigma: float, tol: float = 1e-13, max_steps: int = 5):
+def rayleigh_refine(pencil: BlockPencil, x: np.ndarray, sigma: float, tol: float = 1e-13, max_steps: int = 5):
     """RQI from (x, σ): returns (λ, x with xᵀMx = 1, converged).
 
     Converged when the shift stops moving, |λ − σ| ≤ tol·max(1, |λ|): the last

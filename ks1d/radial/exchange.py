@@ -52,7 +52,7 @@ f_bσ = f_b / 2.
 from __future__ import annotations
 
 from fractions import Fraction
-from functools import lru_cache
+from functools import cache
 from math import factorial, sqrt
 
 import numpy as np
@@ -61,7 +61,7 @@ import scipy.linalg as sl
 from .mesh import RadialMesh
 
 
-@lru_cache(maxsize=None)
+@cache
 def wigner3j_zero(l1: int, l2: int, l3: int) -> float:
     """Wigner 3j symbol (l1 l2 l3; 0 0 0).
 
@@ -78,7 +78,7 @@ def wigner3j_zero(l1: int, l2: int, l3: int) -> float:
     return (-1) ** g * val
 
 
-@lru_cache(maxsize=None)
+@cache
 def wigner3j(j1: int, j2: int, j3: int, m1: int, m2: int, m3: int) -> float:
     """Wigner 3j symbol (j1 j2 j3; m1 m2 m3) for integer arguments, by Racah's formula
 
@@ -122,7 +122,7 @@ def gaunt_coefficient(k: int, l1: int, m1: int, l2: int, m2: int) -> float:
             * wigner3j(l1, k, l2, -m1, m1 - m2, m2))
 
 
-@lru_cache(maxsize=None)
+@cache
 def self_exchange_sum(l: int, k: int) -> float:
     """s_k = Σ_m [c^k(lm, lm)]², the diagonal (m = m′) part of Σ_mm′ [c^k(lm, lm′)]² = (2l+1)² (l k l; 0 0 0)²."""
     return float(sum(gaunt_coefficient(k, l, m, l, m) ** 2 for m in range(-l, l + 1)))

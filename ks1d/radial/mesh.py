@@ -145,7 +145,7 @@ class RadialMesh:
         self.size = last - 1
 
     @classmethod
-    def for_atom(cls, Z: float, spec: MeshSpec) -> "RadialMesh":
+    def for_atom(cls, Z: float, spec: MeshSpec) -> RadialMesh:
         return cls(element_boundaries(Z, spec), spec.order, spec.quad_extra)
 
     @property

@@ -49,7 +49,6 @@ from .poisson import PoissonSolver, hartree_energy
 from .relativity import SPEED_OF_LIGHT, spin_free_gram, x2c_one_electron
 from .result import RadialData
 
-
 #: relative rounding floor of relativistic SCF energies (see run_scf)
 RELATIVISTIC_ENERGY_NOISE = 1e-13
 #: rounding floor of the relativistic density residual ∫|Δρ| per electron: on the finest meshes
@@ -350,7 +349,7 @@ class AtomicProblem:
             out[key] = (C, eps)
         return out
 
-    def _coupled_channel(self, ch: "_Channel", h: np.ndarray, opens: list) -> tuple[np.ndarray, list]:
+    def _coupled_channel(self, ch: _Channel, h: np.ndarray, opens: list) -> tuple[np.ndarray, list]:
         """Orbitals of a channel whose sub-shells have different Fock operators (F_c = F, F_a = F + Δ_a).
 
         They make Q = Σ_i f_i ⟨i|F_i|i⟩ stationary over orthonormal sets (for operators fixed by
@@ -383,7 +382,7 @@ class AtomicProblem:
         prev = self._previous.get(key)
         C = prev.copy() if prev is not None and prev.shape == (h.shape[0], count) else self._lowest(h, count)
         converged = False
-        for it in range(1, _INNER_MAX + 1):
+        for it in range(1, _INNER_MAX + 1):  # noqa: B007 (the count is kept after the loop)
             C_old = C.copy()
             if closed_cols:
                 C[:, closed_cols] = self._lowest(h, len(closed_cols), C[:, open_cols])

@@ -8,7 +8,7 @@ potential variant see S. Lehtola, J. Chem. Theory Comput. 15, 1593 (2019)).
 from __future__ import annotations
 
 from dataclasses import dataclass
-from functools import lru_cache
+from functools import cache
 
 import numpy as np
 from scipy.interpolate import CubicSpline
@@ -40,7 +40,7 @@ class AtomicProfile:
         return np.where(r > self._r_last, self._n_electrons / np.maximum(r, 1e-300), v)
 
 
-@lru_cache(maxsize=None)
+@cache
 def atomic_profile(Z: int, xc: str = "lda") -> AtomicProfile:
     """Profile of the neutral spin-restricted atom Z (cached per process)."""
     from .scf import solve_atom

@@ -82,7 +82,8 @@ class RadialData:
             u, _ = self.mesh.values_at(c, rr)
             out[spins.index(key[2])] += shell_density(rr, u, occ)
             if self.small is not None and key in self.small:
-                out[spins.index(key[2])] += shell_density(rr, self.mesh.interpolate_quadrature(self.small[key], rr), occ)
+                small = self.mesh.interpolate_quadrature(self.small[key], rr)
+                out[spins.index(key[2])] += shell_density(rr, small, occ)
         return out
 
     def to_dict(self) -> dict:

@@ -55,8 +55,8 @@ from .density import FOUR_PI
 from .eigen import banded, sign_changes
 from .mesh import MeshSpec
 from .poisson import hartree_energy
-from .relativity import SPEED_OF_LIGHT, sommerfeld_energy
 from .problem import AtomicProblem, thomas_fermi_potential
+from .relativity import SPEED_OF_LIGHT, sommerfeld_energy
 
 #: relative self-consistency of each orbital energy with its own M(ε)
 EPS_TOLERANCE = 1e-12
@@ -259,7 +259,8 @@ class ScalarProblem(AtomicProblem):
             scale = 1.0 / np.sqrt(1.0 + np.sum(m.w * Q * Q, axis=(1, 2)))
             C = X * scale
             u, du, Q = u * scale[:, None, None], du * scale[:, None, None], Q * scale[:, None, None]
-            dQ = -Q / m.r + ch.l * (ch.l + 1) * u * inv_m / (2.0 * self.c * m.r**2) - (e[:, None, None] - v) * u / self.c
+            dQ = (-Q / m.r + ch.l * (ch.l + 1) * u * inv_m / (2.0 * self.c * m.r**2)
+                  - (e[:, None, None] - v) * u / self.c)
             sign = np.where(C[0] < 0, -1.0, 1.0)
             C, Q, dQ = C * sign, Q * sign[:, None, None], dQ * sign[:, None, None]
             vexp = np.sum(C * (vmat @ C), axis=0) + np.sum(m.w * v * Q * Q, axis=(1, 2))

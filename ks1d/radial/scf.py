@@ -46,19 +46,25 @@ import numpy as np
 
 from .._version import __version__
 from ..elements import element as _element
-from ..errors import (ConfigurationError, ConvergenceError, SettingsError, SpinError,
-                      UnsupportedFunctional)
-from ..occupations import L_LETTERS, check_anion_charge, build_configuration, build_dirac_configuration
+from ..errors import ConfigurationError, ConvergenceError, SettingsError, SpinError, UnsupportedFunctional
+from ..nuclei import check_nucleus
+from ..occupations import L_LETTERS, build_configuration, build_dirac_configuration, check_anion_charge
 from ..results import EnergyComponents, SCFOptions, multiplicity_of
 from ..threads import one_blas_thread
 from ..xc import resolve_functional
 from .mesh import MeshSpec
 from .poisson import total_charge
-from .relativity import (SPEED_OF_LIGHT, check_relativity, check_speed_of_light)
-from ..nuclei import check_nucleus
+from .problem import (  # noqa: F401 (re-exported)
+    _INNER_MAX,
+    RELATIVISTIC_DENSITY_NOISE,
+    RELATIVISTIC_ENERGY_NOISE,
+    SPIN_NAMES,
+    AtomicProblem,
+    run_scf,
+    thomas_fermi_potential,
+)
+from .relativity import SPEED_OF_LIGHT, check_relativity, check_speed_of_light
 from .result import AtomResult, Orbital, RadialData
-from .problem import (_INNER_MAX, RELATIVISTIC_DENSITY_NOISE, RELATIVISTIC_ENERGY_NOISE,  # noqa: F401 (re-exported)
-                      SPIN_NAMES, AtomicProblem, run_scf, thomas_fermi_potential)
 
 #: Named precision levels → mesh settings.  "normal" reproduces the
 #: basis-set limit to well below 1 µHa for Z = 1–92 (see

@@ -22,12 +22,12 @@ import csv
 import io
 import math
 from dataclasses import asdict, dataclass
-from functools import lru_cache
+from functools import cache
 from importlib import resources
 
 from .. import units
-from ..errors import InputError, Ks1dError, UnknownElement
 from ..elements import symbol as _element_symbol
+from ..errors import InputError, Ks1dError, UnknownElement
 
 
 class UnknownReference(InputError):
@@ -184,7 +184,7 @@ def _csv_files() -> list[str]:
     return sorted(p.name for p in resources.files(__package__).iterdir() if p.name.endswith(".csv"))
 
 
-@lru_cache(maxsize=None)
+@cache
 def _load() -> tuple[dict[str, dict[str, ReferenceValue]], dict[str, dict[str, ReferenceStatement]]]:
     """Read every CSV file of the package once: (values by quantity and key, statements likewise)."""
     values: dict[str, dict[str, ReferenceValue]] = {q: {} for q in QUANTITIES}

@@ -46,19 +46,17 @@ Which species enter the IP/EA checks, and why:
 """
 from __future__ import annotations
 
-from ..serialize import dumps
-
-import json
 import time
+from collections.abc import Callable
 from contextlib import nullcontext
 from dataclasses import asdict, dataclass, field
-from typing import Callable
 
 from .. import threads, units
 from .._version import __version__
 from ..elements import atomic_number
 from ..errors import InputError
 from ..reference import reference_table, reference_value
+from ..serialize import dumps
 from .accuracy import PER_SPECIES_FACTOR, SET_FACTOR, typical_accuracy
 
 EV = units.HARTREE_TO_EV

@@ -33,11 +33,11 @@ from __future__ import annotations
 from dataclasses import asdict, dataclass, field
 from typing import Any
 
-from ..occupations import ground_state_multiplicity  # noqa: F401  (re-exported)
 from .. import units
 from .._version import __version__
 from ..elements import element as _element
 from ..errors import ConfigurationError, SpinError
+from ..occupations import ground_state_multiplicity  # noqa: F401  (re-exported)
 
 EV = units.HARTREE_TO_EV
 
@@ -131,8 +131,13 @@ def _integer_charge(charge) -> int:
     return int(charge)
 
 
-def radial_species(element, xc: str, charge: int = 0, precision: str = "normal") -> tuple[SpeciesEnergy, tuple]:
-    """Energy of one atomic species in its spin-polarized ground state, and the solver's warnings."""
+def radial_species(element, xc: str, charge: int = 0, precision: str = "normal",
+                   relativity: str = "none") -> tuple[SpeciesEnergy, tuple]:
+    """Energy of one atomic species in its spin-polarized ground state, and the solver's warnings.
+
+    ``relativity`` is the radial Hamiltonian (``"none"``, ``"scalar"``, ``"x2c"``; see
+    :func:`ks1d.radial.scf.solve_atom`).
+    """
     from ..radial.scf import solve_atom
 
     el = _element(element)
@@ -140,29 +145,29 @@ def radial_species(element, xc: str, charge: int = 0, precision: str = "normal")
     if el.Z - charge == 0:
         return SpeciesEnergy(label, charge, 1, 0.0, None, "(bare nucleus)"), ()
     res = solve_atom(el.symbol, xc=xc, charge=charge, spin="polarized", precision=precision,
-                     estimate_error=False)
+                     estimate_error=False, relativity=relativity)
     sp = SpeciesEnergy(label, charge, ground_state_multiplicity(el.symbol, charge), res.total_energy,
                        res.homo_energy, res.configuration, res.converged)
     return sp, tuple(f"{label}: {w}" for w in res.warnings)
 
 
 def atom_ionisation_potential(element, xc: str = "pbe", charge: int = 0,
-                              precision: str = "normal") -> DeltaSCFResult:
+                              precision: str = "normal", relativity: str = "none") -> DeltaSCFResult:
     """ΔSCF IP of an atom (or atomic ion of ``charge``) with the radial solver."""
     charge = _integer_charge(charge)
     el = _element(element)
     if el.Z - charge <= 0:
         raise ConfigurationError(f"{el.symbol} with charge {charge:+d} has no electron to remove")
-    parent, w0 = radial_species(el.symbol, xc, charge, precision)
-    ion, w1 = radial_species(el.symbol, xc, charge + 1, precision)
+    parent, w0 = radial_species(el.symbol, xc, charge, precision, relativity)
+    ion, w1 = radial_species(el.symbol, xc, charge + 1, precision, relativity)
     ip = delta_scf_ionisation_potential(parent.total_energy, ion.total_energy)
     return DeltaSCFResult(parent.label, "ionisation_potential", xc, "radial", ip * EV,
                           None if parent.homo_energy is None else -parent.homo_energy * EV,
-                          (parent, ion), w0 + w1, {"precision": precision})
+                          (parent, ion), w0 + w1, {"precision": precision, "relativity": relativity})
 
 
 def atom_electron_affinity(element, xc: str = "pbe", charge: int = 0,
-                           precision: str = "normal") -> DeltaSCFResult:
+                           precision: str = "normal", relativity: str = "none") -> DeltaSCFResult:
     """ΔSCF EA of an atom (or atomic ion of ``charge``) with the radial solver.
 
     The anion is solved in the solver's confining box; when its HOMO is
@@ -171,8 +176,8 @@ def atom_electron_affinity(element, xc: str = "pbe", charge: int = 0,
     """
     charge = _integer_charge(charge)
     el = _element(element)
-    parent, w0 = radial_species(el.symbol, xc, charge, precision)
-    anion, w1 = radial_species(el.symbol, xc, charge - 1, precision)
+    parent, w0 = radial_species(el.symbol, xc, charge, precision, relativity)
+    anion, w1 = radial_species(el.symbol, xc, charge - 1, precision, relativity)
     ea = delta_scf_electron_affinity(parent.total_energy, anion.total_energy)
     warnings = list(w0 + w1)
     if anion.homo_energy is not None and anion.homo_energy >= 0:
@@ -182,7 +187,7 @@ def atom_electron_affinity(element, xc: str = "pbe", charge: int = 0,
                         f"the EA refers to a {ANION_R_MAX:g}-bohr box and changes with its radius")
     return DeltaSCFResult(parent.label, "electron_affinity", xc, "radial", ea * EV,
                           None if anion.homo_energy is None else -anion.homo_energy * EV,
-                          (parent, anion), tuple(warnings), {"precision": precision})
+                          (parent, anion), tuple(warnings), {"precision": precision, "relativity": relativity})
 
 
 # --------------------------------------------------------------- molecules (Gaussian)

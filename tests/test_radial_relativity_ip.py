@@ -64,3 +64,14 @@ def test_spin_orbit_repairs_6p_ionisation_potentials(symbol, neutral, cation):
     dk = ip(symbol, "dirac", neutral, cation) - exp
     assert abs(dk) < 0.2
     assert abs(dk) < abs(nr) - 0.1
+
+
+def test_validation_helper_passes_relativity_through():
+    # ks1d.validate.atom_ionisation_potential(relativity=) is the README's Au example: it must give the
+    # same ΔSCF IP as the two solve_atom calls above (same Hamiltonian, configurations and mesh)
+    from ks1d.validate import atom_ionisation_potential
+
+    r = atom_ionisation_potential("Au", xc="pbe", relativity="scalar")
+    assert r.value_ev == pytest.approx(ip("Au", "scalar"), abs=1e-6)
+    assert r.settings["relativity"] == "scalar"
+    assert abs(r.value_ev - experiment("Au")) < 0.5  # NIST ASD via mendeleev

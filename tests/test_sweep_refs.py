@@ -120,3 +120,34 @@ def test_bad_refs_requests_exit_2_before_any_atom_runs(argv, fragment, capsys, t
     assert fragment in lines[0], lines[0]
     assert "Traceback" not in err and out == ""
     assert list(tmp_path.iterdir()) == []
+
+
+def test_relativistic_reference_energies_are_the_radial_atoms_and_their_own_jobs(capsys):
+    # `ks1d refs --relativity x2c` must give exactly the atom that solve_atom(relativity="x2c") gives, say
+    # so in the model column, and use job keys of its own (a stored non-relativistic energy is never reused)
+    import ks1d
+    from ks1d.sweep.properties.reference_energies import reference_jobs
+
+    code, out = _run(["Ne", "--xc", "lda", "--precision", "low", "--relativity", "x2c", "--json"], capsys)
+    assert code == 0
+    (row,) = json.loads(out)
+    direct = ks1d.solve_atom("Ne", xc="lda", precision="low", relativity="x2c")
+    assert row["total_energy"] == pytest.approx(direct.total_energy, abs=1e-9)
+    assert "X2C-1e" in row["model"]
+    nonrel = ks1d.solve_atom("Ne", xc="lda", precision="low", estimate_error=False)
+    # the relativistic lowering of Ne: Dirac-Hartree-Fock -128.692 minus HF -128.547 Ha, about -0.145 Ha
+    # (from memory, Visscher and Dyall, At. Data Nucl. Data Tables 67, 207 (1997)); a spin-free LDA atom
+    # lies in the same window
+    assert -0.2 < row["total_energy"] - nonrel.total_energy < -0.1
+    keys = {reference_jobs(["Ne"], ["lda"], relativity=r)[0].key for r in ("none", "scalar", "x2c")}
+    assert len(keys) == 3
+
+
+@pytest.mark.parametrize("argv, words", [
+    (["Au", "--xc", "pbe0", "--relativity", "scalar"], "use relativity='x2c'"),
+    (["Au", "--xc", "pbe", "--relativity", "scalar", "--basis", "def2-svp"], "leave out --basis"),
+])
+def test_relativistic_refs_refuse_what_they_cannot_do_before_running(argv, words, capsys):
+    code, out, err = _cli(["refs", *argv, "--quiet"], capsys)
+    assert code == 2 and out == ""
+    assert len(err.strip().splitlines()) == 1 and words in err

@@ -36,6 +36,8 @@ def register(subparsers) -> None:
                    "separate several with commas, or with ';' when a libxc id itself has commas)")
     p.add_argument("--basis", metavar="NAME", help="Gaussian-basis energies (integer occupations) instead of the "
                    "radial basis-set limit")
+    p.add_argument("--relativity", default="none", choices=("none", "scalar", "x2c"),
+                   help="radial Hamiltonian: none, scalar (Koelling-Harmon; LDA/GGA), x2c (spin-free X2C-1e)")
     p.add_argument("--precision", default="normal", choices=("low", "normal", "high"),
                    help="radial mesh precision (default: normal)")
     p.add_argument("--workers", type=int, default=0, metavar="N",
@@ -89,7 +91,7 @@ def _refs(args) -> int:
     basis = None if args.basis is None else args.basis.strip()
     if basis == "":
         raise InputError("--basis needs a basis name, e.g. --basis def2-tzvp")
-    rows = reference_energies(symbols, xcs, basis=basis, precision=args.precision,
+    rows = reference_energies(symbols, xcs, basis=basis, precision=args.precision, relativity=args.relativity,
                               executor=make_executor(workers=args.workers), progress=not args.quiet,
                               stream=sys.stderr)
     if args.json:
@@ -131,7 +133,7 @@ def _table(rows, args) -> str:
                  f"model: {model_of(args.basis.strip())}"]
     else:
         title = [f"Reference atomic energies at the basis-set limit (precision {args.precision}); ks1d {__version__}",
-                 f"model: {model_of(None)}"]
+                 f"model: {model_of(None, args.relativity)}"]
     out = title + [line(head), line(["-" * w for w in widths])]
     out += [line(b) for b in body]
     libxc = {r.xc: r.libxc for r in rows}

@@ -141,6 +141,15 @@ def default_mesh(precision: str, relativity: str = "none", nucleus: str = "point
     return PRECISION_RELATIVISTIC[precision]
 
 
+def check_relativistic_functional(relativity: str, func) -> None:
+    """UnsupportedFunctional if the radial Hamiltonian ``relativity`` cannot do the resolved functional."""
+    check_relativity(relativity)
+    if relativity in _SEMILOCAL_ONLY and (func.family not in ("lda", "gga") or func.is_hybrid):
+        raise UnsupportedFunctional(
+            f"relativity='{relativity}' supports LDA and GGA functionals, not '{func.name}' ({func.kind}): "
+            f"{_SEMILOCAL_ONLY[relativity]}; use relativity='x2c' for meta-GGA, hybrid and HF atoms")
+
+
 @one_blas_thread
 def solve_atom(element, xc: str = "lda", charge: float = 0, spin=None, config: str | None = None, *,
                relativity: str = "none", nucleus: str = "point",
@@ -193,10 +202,7 @@ def solve_atom(element, xc: str = "lda", charge: float = 0, spin=None, config: s
         raise SpinError(f"relativity='dirac' atoms are spin-restricted (σ_z is not conserved by the Dirac "
                         f"Hamiltonian), got spin={spin!r}; use spin='restricted', or relativity='scalar' or "
                         "'x2c' for a spin-polarized relativistic atom")
-    if relativity in _SEMILOCAL_ONLY and (func.family not in ("lda", "gga") or func.is_hybrid):
-        raise UnsupportedFunctional(
-            f"relativity='{relativity}' supports LDA and GGA functionals, not '{func.name}' ({func.kind}): "
-            f"{_SEMILOCAL_ONLY[relativity]}; use relativity='x2c' for meta-GGA, hybrid and HF atoms")
+    check_relativistic_functional(relativity, func)
     try:
         charge = float(charge)
     except (TypeError, ValueError):

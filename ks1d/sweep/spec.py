@@ -41,6 +41,9 @@ arguments of :func:`ks1d.radial.scf.solve_atom` / :func:`ks1d.gaussian.scf.solve
 with the SCF options of :class:`ks1d.results.SCFOptions` given flat in the
 same table (``damping``, ``residual_tolerance``, ``max_iterations``,
 ``history``, ``energy_tolerance``; ``level_shift`` and ``smearing`` for molecules).
+Relativistic radial atoms: ``atom_options = { relativity = "scalar" }`` (or
+``"x2c"``; ``nucleus = "gaussian"`` likewise); the options are part of each job's
+settings and so of its key, so a stored non-relativistic result is never reused.
 
 Everything is checked while the spec is read, before any job runs and with
 the same checks as ``ks1d report`` (:mod:`ks1d.sweep.properties.checks`):

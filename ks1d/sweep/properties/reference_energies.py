@@ -67,17 +67,46 @@ class AtomReferenceRow:
         return dict(self.__dict__)
 
 
-def model_of(basis: str | None) -> str:
+#: radial Hamiltonians that give spin-polarized reference atoms
+REFS_RELATIVITY = ("none", "scalar", "x2c")
+
+_RELATIVITY_WORDS = {"scalar": "scalar-relativistic (Koelling-Harmon)", "x2c": "spin-free X2C-1e"}
+
+
+def model_of(basis: str | None, relativity: str = "none") -> str:
     """The words for the model of :func:`reference_energies` with this ``basis`` (None: the radial limit)."""
-    return RADIAL_MODEL if basis is None else GAUSSIAN_MODEL.format(basis=basis)
+    if basis is not None:
+        return GAUSSIAN_MODEL.format(basis=basis)
+    if relativity == "none":
+        return RADIAL_MODEL + ", non-relativistic"
+    return RADIAL_MODEL + f", {_RELATIVITY_WORDS[relativity]}"
 
 
 def reference_jobs(symbols: Sequence[str], xcs: Sequence[str], basis: str | None = None,
-                   precision: str = "normal") -> list[Job]:
-    """The ``total_energy`` jobs of the rows, checked before anything runs (functional, basis, solver)."""
+                   precision: str = "normal", relativity: str = "none") -> list[Job]:
+    """The ``total_energy`` jobs of the rows, checked before anything runs (functional, basis, solver).
+
+    ``relativity`` is the radial Hamiltonian (``"none"``, ``"scalar"`` or ``"x2c"``; the spin-restricted
+    ``"dirac"`` atoms are not spin-polarized ground states).  It enters the job settings, and so the job
+    keys, only when it is not ``"none"``: stored non-relativistic results keep their keys and are never
+    reused for a relativistic job.
+    """
+    from ...errors import SettingsError
+    from ...radial.scf import check_relativistic_functional
+
+    if relativity not in REFS_RELATIVITY:
+        raise SettingsError(f"relativity must be one of {', '.join(map(repr, REFS_RELATIVITY))} for reference "
+                            f"energies of spin-polarized atoms, got {relativity!r}")
     if basis is None:
-        settings = {"atoms": "radial", "precision": precision, "spin": "polarized"}
+        settings: dict[str, Any] = {"atoms": "radial", "precision": precision, "spin": "polarized"}
+        if relativity != "none":
+            for xc in xcs:
+                check_relativistic_functional(relativity, resolve_functional(xc))
+            settings["atom_options"] = {"relativity": relativity}
     else:
+        if relativity != "none":
+            raise SettingsError("relativity applies to the radial basis-set limit; Gaussian-basis atoms are "
+                                "non-relativistic (leave out --basis or --relativity)")
         settings = {"atoms": "basis", "basis": basis}
     jobs = [Job(system=neutral_atom(s), property="total_energy", functional=xc, settings=freeze_settings(settings))
             for s in symbols for xc in xcs]
@@ -94,7 +123,9 @@ def rows_from_outcomes(jobs: Sequence[Job], outcomes: dict[str, dict[str, Any]])
         el = elements.element(job.system.symbol)
         common = dict(element=el.symbol, Z=el.Z, xc=job.functional, libxc=resolve_functional(job.functional).libxc,
                       spin="polarized", solver="radial (basis-set limit)" if radial else f"gaussian {st['basis']}",
-                      model=model_of(None if radial else st["basis"]), settings=st, ks1d_version=__version__)
+                      model=model_of(None if radial else st["basis"],
+                                     (st.get("atom_options") or {}).get("relativity", "none")),
+                      settings=st, ks1d_version=__version__)
         if o["status"] != "done":
             rows.append(AtomReferenceRow(configuration=el.ground_configuration,
                                          multiplicity=ground_state_multiplicity(el.symbol), total_energy=None,
@@ -118,14 +149,14 @@ def rows_from_outcomes(jobs: Sequence[Job], outcomes: dict[str, dict[str, Any]])
 
 def reference_energies(symbols: Sequence[str], xcs: Sequence[str], basis: str | None = None,
                        precision: str = "normal", executor=None, progress: bool = False,
-                       stream: TextIO | None = None) -> list[AtomReferenceRow]:
+                       stream: TextIO | None = None, relativity: str = "none") -> list[AtomReferenceRow]:
     """Rows in element-then-functional order; failed atoms are rows with ``error`` set.
 
     Bad input (an unknown functional or basis, a range-separated hybrid without a basis)
     raises before any atom is solved.  ``progress`` draws a progress line on ``stream``
     (default stderr) as the atoms finish.
     """
-    jobs = reference_jobs(symbols, xcs, basis, precision)
+    jobs = reference_jobs(symbols, xcs, basis, precision, relativity)
     outcomes: dict[str, dict[str, Any]] = {}
     bar = Progress(len(jobs), stream=stream, enabled=progress, label="refs")
 

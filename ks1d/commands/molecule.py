@@ -120,6 +120,10 @@ def format_molecule(res) -> str:
     comps = res.components.to_dict()
     for name, val in [("total", res.total_energy)] + list(comps.items()):
         lines.append(f"{name.replace('_', ' '):<24}{val:>20.8f}{val * HARTREE_TO_EV:>18.5f}")
+    if res.grid_error_estimate is not None:
+        finer = res.settings.get("grid_error_reference_level", "a finer grid")
+        lines.append(f"{'grid error estimate':<24}{res.grid_error_estimate:>20.1e} Ha  (E_xc on the {finer} grid "
+                     "minus E_xc on this one, same density)")
     lines.append("")
     if res.homo_lumo_gap is not None:
         lines.append(f"HOMO / LUMO / gap       {res.homo_energy:.6f} / {res.lumo_energy:.6f} / "

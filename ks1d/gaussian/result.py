@@ -52,7 +52,11 @@ class MoleculeResult(_ToDict):
     :class:`~ks1d.radial.result.AtomResult` (see :mod:`ks1d.results`).
     ``dipole`` is the electric dipole moment (e·bohr) about the coordinate
     origin of the input geometry; ``mulliken_charges`` follow the atom order
-    of ``geometry``.  ``error_estimate`` is None until a grid-error estimate exists.
+    of ``geometry``.  ``grid_error_estimate`` (Ha) is E_xc of the converged density on
+    the next finer grid level minus E_xc on the grid used (None on the ``reference``
+    level, on custom grids, or when not asked for); ``error_estimate`` is its magnitude,
+    the numerical error of the stated model as on atoms (the basis-set error is not
+    included: that is a property of the model).
     ``gradient`` is ∂E/∂R_A (natoms × 3, hartree/bohr; :mod:`ks1d.gaussian.gradient`) when asked
     for, ``forces`` the same as forces in eV/Å; ``state`` (not serialised) is the converged density
     that ``solve_molecule(..., start=result)`` restarts from.
@@ -89,6 +93,8 @@ class MoleculeResult(_ToDict):
 
     # nuclear gradient (solve_molecule(..., gradient=True)); None unless asked for
     gradient: np.ndarray | None = None
+    # E_xc on the next finer grid minus E_xc on the used grid, same density (Ha)
+    grid_error_estimate: float | None = None
     # converged SCF state (densities, orbitals) for restarts and gradients; not serialised
     state: ConvergedState | None = field(default=None, repr=False, compare=False, metadata={"json": False})
     # the parts of the gradient (ks1d.gaussian.gradient.GradientTerms); not serialised

@@ -1,8 +1,8 @@
 """The one structure reader: XYZ and extended XYZ by ks1d, every other format through ASE.
 
 :func:`read_structure` takes a file path (any format that ``ase.io.read``
-reads: CIF, PDB, extended XYZ, the input formats of the common plane-wave
-codes such as POSCAR/CONTCAR, and more) or XYZ text, and returns a
+reads: CIF, PDB, extended XYZ, the structure inputs of the common plane-wave
+codes, and more) or XYZ text, and returns a
 :class:`Structure` — elements, positions in ångström, cell and periodicity.
 The molecule solver, the report, sweeps and ``basis-error --xyz`` all read
 through it.
@@ -48,8 +48,8 @@ from .errors import GeometryError, UnknownElement
 #: file extensions read by ks1d's own XYZ parser (everything else goes to ASE)
 XYZ_SUFFIXES = (".xyz", ".extxyz")
 #: formats named in error messages; ASE reads many more (``ase.io.formats.ioformats``)
-COMMON_FORMATS = ("xyz", "extxyz", "cif", "pdb", "vasp (POSCAR/CONTCAR)", "espresso-in", "aims",
-                  "castep-cell", "gaussian-in", "gen", "res", "cube", "json/db (ASE)")
+COMMON_FORMATS = ("xyz", "extxyz", "cif", "pdb", "cube", "json/db (ASE)",
+                  "the structure inputs of the common plane-wave and molecular codes (by ASE format name)")
 
 
 #: bond perception: d(A, B) < BOND_FACTOR · (r_cov,A + r_cov,B) (common practice)

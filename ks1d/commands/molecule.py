@@ -19,7 +19,7 @@ from ._common import (
 def register(sub) -> None:
     p = sub.add_parser("molecule", help="solve a molecule in a Gaussian basis",
                        description="Kohn-Sham (or Hartree-Fock) SCF of a molecule given as a structure file "
-                                   "(XYZ, extended XYZ, or any format ASE reads: CIF, PDB, POSCAR, ...; Å).")
+                                   "(XYZ, extended XYZ, or any format ASE reads: CIF, PDB, plane-wave inputs...; Å).")
     p.add_argument("structure", help="structure file (coordinates in ångström)")
     p.add_argument("--basis", default="def2-svp", help=BASIS_HELP + " (default: def2-svp)")
     p.add_argument("--xc", default="pbe", help="functional alias or libxc identifiers (default: pbe)")

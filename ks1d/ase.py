@@ -78,7 +78,8 @@ class KS1D(Calculator):
             start = None
         p = self.parameters
         res = solve_molecule(geom, basis=p["basis"], xc=p["xc"], charge=p["charge"], multiplicity=p["multiplicity"],
-                             spin=p["spin"], grid=p["grid"], scf=p["scf"], gradient=True, start=start)
+                             spin=p["spin"], grid=p["grid"], scf=p["scf"], gradient=True, start=start,
+                             estimate_grid_error=False)  # called once per step of an ASE driver
         self.last_result = res
         energy = res.total_energy * HARTREE_TO_EV
         self.results = {"energy": energy, "free_energy": energy, "forces": np.array(res.forces),

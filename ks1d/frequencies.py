@@ -180,8 +180,10 @@ def harmonic_frequencies(geometry, basis="def2-svp", xc="pbe", charge: int = 0, 
         scf_opts.setdefault(k, v)
 
     def solve(g, start_from):
+        # per-step energies: no grid-error evaluation (it would cost a fine-grid E_xc per step)
         return solve_molecule(g, basis=basis, xc=xc, charge=charge, multiplicity=multiplicity, spin=spin,
-                              grid=grid, scf=scf_opts, gradient=True, start=start_from, **solver_options)
+                              grid=grid, scf=scf_opts, gradient=True, start=start_from,
+                              estimate_grid_error=False, **solver_options)
 
     ref = solve(geom, start)
     max_force = float(np.abs(ref.gradient).max())

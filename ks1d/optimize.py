@@ -187,8 +187,10 @@ def optimize_molecule(geometry, basis="def2-svp", xc="pbe", charge: int = 0, mul
         raise SettingsError(f"unknown option(s) {', '.join(sorted(map(repr, unknown)))} for optimize_molecule")
 
     def solve(g, start):
+        # per-step energies: no grid-error evaluation (it would cost a fine-grid E_xc per step)
         return solve_molecule(g, basis=basis, xc=xc, charge=charge, multiplicity=multiplicity, spin=spin,
-                              grid=grid, scf=scf, gradient=True, start=start, **solver_options)
+                              grid=grid, scf=scf, gradient=True, start=start,
+                              estimate_grid_error=False, **solver_options)
 
     history: list[OptimizationStep] = []
     last = {"result": None, "coords": None, "best": None}

@@ -514,7 +514,7 @@ def solve_molecule(geometry, basis="def2-svp", xc="pbe", charge: int = 0, multip
              "coulomb_fitting": bool(coulomb_fitting), "fit_switch": float(fit_switch)}
     res = _analyse(p, one, orb, out, mgrid, extra, timings, t_start)
     if estimate_grid_error:
-        res = _with_grid_error_estimate(res, p, out, bog, ao_cache_mb)
+        res = _with_grid_error_estimate(res, p, out, ao_cache_mb)
     return _attach_state_and_gradient(res, p, orb, out, bog, gradient)
 
 
@@ -522,20 +522,20 @@ def solve_molecule(geometry, basis="def2-svp", xc="pbe", charge: int = 0, multip
 NEXT_FINER_GRID = {"coarse": "default", "default": "fine", "fine": "reference"}
 
 
-def _with_grid_error_estimate(res: MoleculeResult, p: _Problem, out: _Outcome, bog, ao_cache_mb: float):
+def _with_grid_error_estimate(res: MoleculeResult, p: _Problem, out: _Outcome, ao_cache_mb: float):
     """The result with ``grid_error_estimate`` = E_xc[ρ](next finer grid) − E_xc[ρ](used grid).
 
     One extra evaluation of the semilocal functional on the converged density matrix, no
     extra SCF: the first-order change of the total energy with the grid at fixed density
     (the density response to the grid is second order, because E is stationary in D).
     """
+    if not p.func.has_semilocal:  # Hartree-Fock: no grid at all
+        return replace(res, grid_error_estimate=0.0, error_estimate=0.0)
     finer = NEXT_FINER_GRID.get(p.lvl.name)
-    if finer is None or p.lvl != grid_level(p.lvl.name) or not p.func.has_semilocal:
-        if not p.func.has_semilocal:  # Hartree-Fock: no grid at all
-            return replace(res, grid_error_estimate=0.0, error_estimate=0.0)
+    if finer is None or p.lvl != grid_level(p.lvl.name):  # the reference level, or a custom grid
         return res
     t0 = time.perf_counter()
-    e_used = xc_matrices(p.func, bog, out.D).energy
+    e_used = out.parts["exchange_correlation"]  # the last Fock build's E_xc, of this same density out.D
     fine_grid = build_grid(p.geom, grid_level(finer))
     fine_bog = BasisOnGrid(p.bset, fine_grid, 1 if p.func.needs_gradient else 0, cache_mb=ao_cache_mb)
     e_fine = xc_matrices(p.func, fine_bog, out.D).energy

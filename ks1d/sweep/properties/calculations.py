@@ -160,6 +160,7 @@ def diatomic_minimum(sym_a: str, sym_b: str, r_start_angstrom: float, xc: str, b
         from .bondmin import bond_minimum
 
         scf, rest = split_scf_options(opts)
+        point_options = {"estimate_grid_error": False, **rest}  # gradient points of a search: no grid-error pass
         own_limit = "max_iterations" not in scf
         scf = {**BOND_SCF, **scf}
         numbers = (elements.atomic_number(sym_a), elements.atomic_number(sym_b))
@@ -170,7 +171,7 @@ def diatomic_minimum(sym_a: str, sym_b: str, r_start_angstrom: float, xc: str, b
             settings = {**scf, **BOND_STALLED_SCF} if state["stalled"] else scf
             try:
                 return solve_molecule(geom, basis=basis, xc=xc, multiplicity=multiplicity, scf=settings,
-                                      gradient=True, start=state["last"], **rest)
+                                      gradient=True, start=state["last"], **point_options)
             except ConvergenceError as exc:
                 if not state["stalled"] and _stalled(exc.history, BOND_STALLED_SCF["residual_tolerance"]):
                     state["stalled"] = True
@@ -180,7 +181,7 @@ def diatomic_minimum(sym_a: str, sym_b: str, r_start_angstrom: float, xc: str, b
                 # slow but not stalled: the solver's usual iteration limit before giving up
                 return solve_molecule(geom, basis=basis, xc=xc, multiplicity=multiplicity,
                                       scf={**settings, "max_iterations": LONG_SCF_ITERATIONS}, gradient=True,
-                                      start=state["last"], **rest)
+                                      start=state["last"], **point_options)
 
         def evaluate(r: float, role: str = "search") -> tuple[float, float]:
             t0 = time.perf_counter()

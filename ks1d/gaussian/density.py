@@ -115,13 +115,14 @@ def density_on_block(ao: np.ndarray, D: np.ndarray, want_grad: bool, want_tau: b
     return rho, grad, tau
 
 
-def xc_matrices(func: Functional, bog: BasisOnGrid, dms: np.ndarray) -> XCResult:
+def xc_matrices(func: Functional, bog: BasisOnGrid, dms: np.ndarray, potentials: bool = True) -> XCResult:
     """E_xc and V^σ_xc for spin density matrices ``dms`` (ns, nao, nao).
 
     ns = 1: ``dms[0]`` is the total density matrix (restricted);
     ns = 2: α and β density matrices.  Two passes over the blocks: densities
     on all points first, then one functional evaluation (libxc calls carry a
-    fixed cost), then the potential matrices.
+    fixed cost), then the potential matrices.  ``potentials=False`` stops after
+    the energy (the matrices are left zero).
     """
     ns, nao, _ = dms.shape
     V = np.zeros((ns, nao, nao))
@@ -153,6 +154,8 @@ def xc_matrices(func: Functional, bog: BasisOnGrid, dms: np.ndarray) -> XCResult
     nelec = rho @ w
     xc = evaluate_xc(func, rho, grad, tau)
     exc = float(np.dot(xc.e, w))
+    if not potentials:
+        return XCResult(exc, V, nelec)
     # weighted potential ingredients on all points
     fr = 0.5 * w * xc.vrho                      # half: V + Vᵀ is taken at the end
     if gga:
@@ -164,7 +167,7 @@ def xc_matrices(func: Functional, bog: BasisOnGrid, dms: np.ndarray) -> XCResult
                            w * (2.0 * xc.vsigma[2] * grad[1] + xc.vsigma[1] * grad[0])])
     if mgga:
         ft = 0.25 * w * xc.vtau
-    def potentials(chunk):
+    def potential_part(chunk):
         Vc = np.zeros((ns, nao, nao))
         for blk in chunk:
             ao = bog.values(blk)
@@ -184,7 +187,7 @@ def xc_matrices(func: Functional, bog: BasisOnGrid, dms: np.ndarray) -> XCResult
                 Vc[s][ix] += vsub
         return Vc
 
-    V = sum(run_chunks(potentials, work))
+    V = sum(run_chunks(potential_part, work))
     V = V + V.transpose(0, 2, 1)
     return XCResult(exc, V, nelec)
 

@@ -514,7 +514,7 @@ def solve_molecule(geometry, basis="def2-svp", xc="pbe", charge: int = 0, multip
              "coulomb_fitting": bool(coulomb_fitting), "fit_switch": float(fit_switch)}
     res = _analyse(p, one, orb, out, mgrid, extra, timings, t_start)
     if estimate_grid_error:
-        res = _with_grid_error_estimate(res, p, out, ao_cache_mb)
+        res = _with_grid_error_estimate(res, p, out)
     return _attach_state_and_gradient(res, p, orb, out, bog, gradient)
 
 
@@ -522,7 +522,7 @@ def solve_molecule(geometry, basis="def2-svp", xc="pbe", charge: int = 0, multip
 NEXT_FINER_GRID = {"coarse": "default", "default": "fine", "fine": "reference"}
 
 
-def _with_grid_error_estimate(res: MoleculeResult, p: _Problem, out: _Outcome, ao_cache_mb: float):
+def _with_grid_error_estimate(res: MoleculeResult, p: _Problem, out: _Outcome):
     """The result with ``grid_error_estimate`` = E_xc[ρ](next finer grid) − E_xc[ρ](used grid).
 
     One extra evaluation of the semilocal functional on the converged density matrix, no
@@ -537,8 +537,9 @@ def _with_grid_error_estimate(res: MoleculeResult, p: _Problem, out: _Outcome, a
     t0 = time.perf_counter()
     e_used = out.parts["exchange_correlation"]  # the last Fock build's E_xc, of this same density out.D
     fine_grid = build_grid(p.geom, grid_level(finer))
-    fine_bog = BasisOnGrid(p.bset, fine_grid, 1 if p.func.needs_gradient else 0, cache_mb=ao_cache_mb)
-    e_fine = xc_matrices(p.func, fine_bog, out.D).energy
+    # the values are used once: no AO cache, and the energy alone (no potential matrices)
+    fine_bog = BasisOnGrid(p.bset, fine_grid, 1 if p.func.needs_gradient else 0, cache_mb=0.0)
+    e_fine = xc_matrices(p.func, fine_bog, out.D, potentials=False).energy
     delta = float(e_fine - e_used)
     timings = dict(res.timings, grid_error_estimate=time.perf_counter() - t0)
     settings = dict(res.settings, grid_error_reference_level=finer)
